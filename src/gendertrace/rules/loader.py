@@ -1,0 +1,256 @@
+"""Load `rules/<lang>.yaml` and `rules/lexicon/<a>-<b>.yaml`, validating every key against a small schema."""
+
+from __future__ import annotations
+
+import hashlib
+import os
+from dataclasses import dataclass
+from functools import lru_cache
+from pathlib import Path
+from typing import Any
+
+import yaml
+
+from gendertrace.errors import RulesError
+
+GENDER_VALUES = {"fem", "masc", "neutral", None}
+NUMBER_VALUES = {"sing", "plur", None}
+PRONOUN_TYPES = {"personal", "possessive", "reflexive"}
+
+
+def rules_dir() -> Path:
+    """The rules folder: $GENDERTRACE_RULES, else the copy inside an installed wheel, else the repository's."""
+    env = os.environ.get("GENDERTRACE_RULES")
+    if env:
+        return Path(env)
+    bundled = Path(__file__).resolve().parents[1] / "rules_data"
+    if bundled.is_dir():
+        return bundled
+    return Path(__file__).resolve().parents[3] / "rules"
+
+
+@dataclass(frozen=True)
+class PronounForm:
+    form: str
+    gender: str | None
+    number: str | None
+    type: str
+    case: str | None = None
+    animate: bool = True
+
+
+@dataclass(frozen=True)
+class LanguageRules:
+    """Everything the pipeline knows about one language, read from its rules file."""
+
+    lang: str
+    name: str
+    path: str
+    pro_drop: bool
+    possessive_agrees_with: str
+    pronouns: dict[str, tuple[PronounForm, ...]]
+    honorifics: dict[str, str]
+    articles: dict[str, tuple[str | None, str | None]]  # form -> (gender, counterpart)
+    noun_genders: dict[str, tuple[str, str]]  # form -> (gender or "common", counterpart form)
+    dependents: frozenset[str]
+    copulas: frozenset[str]
+    agreeing_aux: frozenset[str]
+    passive_aux: frozenset[str]
+    invariable_aux: frozenset[str]
+
+    def pronoun(self, form: str) -> tuple[PronounForm, ...]:
+        return self.pronouns.get(form.lower(), ())
+
+    def is_person_noun(self, form: str) -> bool:
+        return form.lower() in self.noun_genders
+
+    def noun_counterpart(self, form: str) -> tuple[str, str] | None:
+        """(gender of this singular person-noun form, the form of the other gender); "common" for invariable nouns."""
+        return self.noun_genders.get(form.lower())
+
+    def article_counterpart(self, form: str) -> str | None:
+        entry = self.articles.get(form.lower())
+        return entry[1] if entry else None
+
+    def article_gender(self, form: str) -> str | None:
+        entry = self.articles.get(form.lower())
+        return entry[0] if entry else None
+
+    def honorific(self, form: str) -> str | None:
+        return self.honorifics.get(form.lower().rstrip("."))
+
+
+def _fail(path: Path, key: str, message: str) -> RulesError:
+    return RulesError(str(path), key, message)
+
+
+def _require(data: dict, key: str, kind: type | tuple[type, ...], path: Path, where: str = "") -> Any:
+    full = f"{where}{key}"
+    if key not in data:
+        raise _fail(path, full, "missing")
+    value = data[key]
+    if not isinstance(value, kind):
+        names = kind.__name__ if isinstance(kind, type) else " or ".join(k.__name__ for k in kind)
+        raise _fail(path, full, f"expected {names}, found {type(value).__name__} {value!r}")
+    return value
+
+
+def _str_list(data: dict, key: str, path: Path, where: str) -> list[str]:
+    value = _require(data, key, list, path, where)
+    for k, item in enumerate(value):
+        if not isinstance(item, str):
+            raise _fail(path, f"{where}{key}[{k}]", f"expected a string, found {item!r}")
+    return value
+
+
+TOP_KEYS = {
+    "language", "name", "pro_drop", "possessive_agrees_with", "pronouns", "honorifics", "articles",
+    "agreement", "person_nouns",
+}
+
+
+def parse_rules(data: Any, path: Path) -> LanguageRules:
+    """Validate a loaded rules document and build LanguageRules; errors name the file and the key."""
+    if not isinstance(data, dict):
+        raise _fail(path, "(top)", f"expected a mapping, found {type(data).__name__}")
+    unknown = set(data) - TOP_KEYS
+    if unknown:
+        raise _fail(path, sorted(unknown)[0], f"unknown key (expected one of {', '.join(sorted(TOP_KEYS))})")
+    lang = _require(data, "language", str, path)
+    name = _require(data, "name", str, path)
+    pro_drop = _require(data, "pro_drop", bool, path)
+    poss = _require(data, "possessive_agrees_with", str, path)
+    if poss not in ("possessor", "possessed"):
+        raise _fail(path, "possessive_agrees_with", f"expected 'possessor' or 'possessed', found {poss!r}")
+
+    pronouns: dict[str, list[PronounForm]] = {}
+    for k, item in enumerate(_require(data, "pronouns", list, path)):
+        where = f"pronouns[{k}]"
+        if not isinstance(item, dict):
+            raise _fail(path, where, f"expected a mapping, found {item!r}")
+        extra = set(item) - {"form", "gender", "number", "type", "case", "animate"}
+        if extra:
+            raise _fail(path, f"{where}.{sorted(extra)[0]}", "unknown key")
+        form = _require(item, "form", str, path, where + ".")
+        gender = item.get("gender")
+        if gender not in GENDER_VALUES:
+            raise _fail(path, f"{where}.gender", f"expected fem, masc, neutral or null, found {gender!r}")
+        number = item.get("number")
+        if number not in NUMBER_VALUES:
+            raise _fail(path, f"{where}.number", f"expected sing, plur or null, found {number!r}")
+        ptype = _require(item, "type", str, path, where + ".")
+        if ptype not in PRONOUN_TYPES:
+            raise _fail(path, f"{where}.type", f"expected one of {sorted(PRONOUN_TYPES)}, found {ptype!r}")
+        animate = item.get("animate", True)
+        if not isinstance(animate, bool):
+            raise _fail(path, f"{where}.animate", f"expected true or false, found {animate!r}")
+        pronouns.setdefault(form.lower(), []).append(
+            PronounForm(form.lower(), gender, number, ptype, item.get("case"), animate)
+        )
+
+    honorifics: dict[str, str] = {}
+    hon = _require(data, "honorifics", dict, path)
+    for gender, forms in hon.items():
+        if gender not in ("fem", "masc", "neutral"):
+            raise _fail(path, f"honorifics.{gender}", "expected fem, masc or neutral")
+        for form in _str_list(hon, gender, path, "honorifics."):
+            honorifics[form.lower().rstrip(".")] = gender
+
+    articles: dict[str, tuple[str | None, str | None]] = {}
+    for form, spec in _require(data, "articles", dict, path).items():
+        where = f"articles.{form}"
+        if not isinstance(spec, dict) or spec.get("gender") not in GENDER_VALUES:
+            raise _fail(path, where, f"expected {{gender: fem|masc|null, counterpart: form}}, found {spec!r}")
+        articles[str(form).lower()] = (spec.get("gender"), spec.get("counterpart"))
+
+    agreement = _require(data, "agreement", dict, path)
+    lists = {k: frozenset(_str_list(agreement, k, path, "agreement.")) for k in (
+        "dependents", "copulas", "agreeing_aux", "passive_aux", "invariable_aux")}
+
+    nouns = _require(data, "person_nouns", dict, path)
+    noun_genders: dict[str, tuple[str, str]] = {}
+    for k, pair in enumerate(_require(nouns, "pairs", list, path, "person_nouns.")):
+        if not (isinstance(pair, list) and len(pair) == 2 and all(isinstance(p, str) for p in pair)):
+            raise _fail(path, f"person_nouns.pairs[{k}]", f"expected [masculine, feminine], found {pair!r}")
+        masc, fem = (p.lower() for p in pair)
+        noun_genders.setdefault(masc, ("masc", fem))
+        noun_genders.setdefault(fem, ("fem", masc))
+    for form in _str_list(nouns, "common", path, "person_nouns."):
+        noun_genders.setdefault(form.lower(), ("common", form.lower()))
+
+    return LanguageRules(
+        lang=lang,
+        name=name,
+        path=str(path),
+        pro_drop=pro_drop,
+        possessive_agrees_with=poss,
+        pronouns={k: tuple(v) for k, v in pronouns.items()},
+        honorifics=honorifics,
+        articles=articles,
+        noun_genders=noun_genders,
+        **lists,
+    )
+
+
+def _read_yaml(path: Path) -> Any:
+    try:
+        text = path.read_text(encoding="utf-8")
+    except UnicodeDecodeError as exc:
+        raise _fail(path, "(file)", f"not valid UTF-8 at byte {exc.start}") from exc
+    try:
+        return yaml.safe_load(text)
+    except yaml.YAMLError as exc:
+        mark = getattr(exc, "problem_mark", None)
+        where = f"line {mark.line + 1}" if mark else "(file)"
+        raise _fail(path, where, f"not valid YAML: {getattr(exc, 'problem', exc)}") from exc
+
+
+@lru_cache(maxsize=32)
+def load_rules(lang: str, folder: str | None = None) -> LanguageRules:
+    """The rules of one language; RulesError when the language has no rules file or the file is invalid."""
+    base = Path(folder) if folder else rules_dir()
+    path = base / f"{lang}.yaml"
+    if not path.is_file():
+        have = sorted(p.stem for p in base.glob("*.yaml"))
+        raise RulesError(str(path), "(file)", f"no rules for language {lang!r} (rules exist for: {', '.join(have)})")
+    rules = parse_rules(_read_yaml(path), path)
+    if rules.lang != lang:
+        raise _fail(path, "language", f"expected {lang!r} (the file name), found {rules.lang!r}")
+    return rules
+
+
+@lru_cache(maxsize=32)
+def load_lexicon(src: str, tgt: str, folder: str | None = None) -> dict[str, frozenset[str]]:
+    """Person-noun translations from src to tgt (lower-cased forms); read from either direction's file.
+
+    Returns an empty mapping when the pair has no lexicon file: linking then relies on names and alignment.
+    """
+    base = (Path(folder) if folder else rules_dir()) / "lexicon"
+    forward, backward = base / f"{src}-{tgt}.yaml", base / f"{tgt}-{src}.yaml"
+    path = forward if forward.is_file() else backward if backward.is_file() else None
+    if path is None:
+        return {}
+    data = _read_yaml(path)
+    if not isinstance(data, dict):
+        raise _fail(path, "(top)", "expected a mapping")
+    entries = _require(data, "entries", dict, path)
+    for key in ("source", "target"):
+        _require(data, key, str, path)
+    out: dict[str, set[str]] = {}
+    for a, targets in entries.items():
+        if not isinstance(targets, list) or not all(isinstance(t, str) for t in targets):
+            raise _fail(path, f"entries.{a}", f"expected a list of forms, found {targets!r}")
+        for b in targets:
+            x, y = (a.lower(), b.lower()) if path == forward else (b.lower(), a.lower())
+            out.setdefault(x, set()).add(y)
+    return {k: frozenset(v) for k, v in out.items()}
+
+
+def rules_digest(folder: str | None = None) -> str:
+    """A short digest of every rules file, recorded in each run's signature."""
+    base = Path(folder) if folder else rules_dir()
+    h = hashlib.sha256()
+    for p in sorted(base.rglob("*.yaml")):
+        h.update(p.relative_to(base).as_posix().encode())
+        h.update(p.read_bytes())
+    return h.hexdigest()[:12]
