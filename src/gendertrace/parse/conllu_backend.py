@@ -116,7 +116,8 @@ def iter_conllu(path: str | Path, lang: str) -> Iterator[ConlluSentence]:
     """Read a CoNLL-U file sentence by sentence; malformed lines raise InputError with file and line."""
     path = str(path)
     try:
-        handle = open(path, encoding="utf-8")
+        # Binary, decoded line by line: a text-mode decode error surfaces per chunk and loses the line number.
+        handle = open(path, "rb")
     except OSError as exc:
         raise InputError(path, None, f"cannot open: {exc.strerror}") from exc
     meta: dict[str, str] = {}
@@ -130,38 +131,42 @@ def iter_conllu(path: str | Path, lang: str) -> Iterator[ConlluSentence]:
         return ConlluSentence(sid, parsed.text, dict(meta), parsed, start_line, newdoc, [c for _, c in rows])
 
     with handle:
-        lineno = 0
-        try:
-            for lineno, raw in enumerate(handle, 1):
-                line = raw.rstrip("\n").rstrip("\r")
-                if not line.strip():
-                    if rows:
-                        yield flush()
-                    meta, rows, newdoc = {}, [], None
-                    start_line = lineno + 1
-                    continue
-                if line.startswith("#"):
-                    body = line[1:].strip()
-                    if "=" in body:
-                        k, v = body.split("=", 1)
-                        k, v = k.strip(), v.strip()
-                        if k == "newdoc id":
-                            newdoc = v
-                        meta[k] = v
-                    continue
-                cols = line.split("\t")
-                if len(cols) != 10:
-                    raise InputError(
-                        path, lineno, f"expected 10 tab-separated columns (CoNLL-U), found {len(cols)}"
-                    )
-                tid = cols[0]
-                if not (tid.isdigit() or ("-" in tid and tid.replace("-", "").isdigit()) or "." in tid):
-                    raise InputError(path, lineno, f"ID {tid!r} is not a word index, range or empty node")
-                if not rows:
-                    start_line = lineno
-                rows.append((lineno, cols))
-        except UnicodeDecodeError as exc:
-            raise InputError(path, lineno + 1, f"not valid UTF-8 ({exc.reason} at byte {exc.start})") from exc
+        for lineno, raw_bytes in enumerate(handle, 1):
+            if lineno == 1 and raw_bytes.startswith(b"\xef\xbb\xbf"):
+                raw_bytes = raw_bytes[3:]  # a byte order mark is not part of the first comment
+            try:
+                raw = raw_bytes.decode("utf-8")
+            except UnicodeDecodeError as exc:
+                raise InputError(
+                    path, lineno, f"not valid UTF-8 ({exc.reason} at byte {exc.start} of the line)"
+                ) from exc
+            line = raw.rstrip("\n").rstrip("\r")
+            if not line.strip():
+                if rows:
+                    yield flush()
+                meta, rows, newdoc = {}, [], None
+                start_line = lineno + 1
+                continue
+            if line.startswith("#"):
+                body = line[1:].strip()
+                if "=" in body:
+                    k, v = body.split("=", 1)
+                    k, v = k.strip(), v.strip()
+                    if k == "newdoc id":
+                        newdoc = v
+                    meta[k] = v
+                continue
+            cols = line.split("\t")
+            if len(cols) != 10:
+                raise InputError(
+                    path, lineno, f"expected 10 tab-separated columns (CoNLL-U), found {len(cols)}"
+                )
+            tid = cols[0]
+            if not (tid.isdigit() or ("-" in tid and tid.replace("-", "").isdigit()) or "." in tid):
+                raise InputError(path, lineno, f"ID {tid!r} is not a word index, range or empty node")
+            if not rows:
+                start_line = lineno
+            rows.append((lineno, cols))
         if rows:
             yield flush()
 

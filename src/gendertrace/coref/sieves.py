@@ -1,0 +1,238 @@
+"""Coreference chains of person mentions, per document and side, by multi-pass deterministic sieves.
+
+Passes run from the most precise to the least: exact name match, structural links (apposition, name-internal
+compounds, predicate nominatives), partial name match, subjects of coordinated verbs, role-noun head match, and
+finally pronoun and zero-subject resolution with syntactic constraints, salience and recency. Every pass agrees on
+number and person; gender agreement is a switch, off on the side being checked so that a wrongly gendered target
+pronoun still joins its entity instead of starting a new one.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Sequence
+from dataclasses import dataclass, field
+
+from gendertrace.model import Chain, Mention, ParsedText, Side
+
+# How far back (in segments) a pronoun or zero subject looks for its antecedent.
+PRONOUN_WINDOW = 3
+
+
+@dataclass
+class Resolution:
+    """The chains of one side plus, per mention, how certain its attachment is (1.0 unless a choice was made)."""
+
+    chains: list[Chain]
+    chain_of: dict[str, str]
+    certainty: dict[str, float] = field(default_factory=dict)
+    antecedent: dict[str, str] = field(default_factory=dict)
+
+
+class _Clusters:
+    def __init__(self, mentions: Sequence[Mention]) -> None:
+        self.parent = {m.id: m.id for m in mentions}
+        self.by_id = {m.id: m for m in mentions}
+
+    def find(self, x: str) -> str:
+        while self.parent[x] != x:
+            self.parent[x] = self.parent[self.parent[x]]
+            x = self.parent[x]
+        return x
+
+    def members(self, x: str) -> list[Mention]:
+        r = self.find(x)
+        return [m for k, m in self.by_id.items() if self.find(k) == r]
+
+    def union(self, a: str, b: str) -> None:
+        ra, rb = self.find(a), self.find(b)
+        if ra != rb:
+            # Keep the earlier mention as representative so chain ids follow text order.
+            first, second = sorted((ra, rb), key=lambda k: _order(self.by_id[k]))
+            self.parent[second] = first
+
+
+def _order(m: Mention) -> tuple[int, int]:
+    return (m.seg, m.start)
+
+
+def _genders(ms: Sequence[Mention]) -> set[str]:
+    return {mk.gender for m in ms for mk in m.marks if mk.gender in ("fem", "masc")}
+
+
+def _compatible(a: Sequence[Mention], b: Sequence[Mention], use_gender: bool) -> bool:
+    """Number always; gender only when switched on, and only where both clusters show one."""
+    na = {m.number for m in a if m.number}
+    nb = {m.number for m in b if m.number}
+    if na and nb and not (na & nb):
+        return False
+    if use_gender:
+        ga, gb = _genders(a), _genders(b)
+        if len(ga) == 1 and len(gb) == 1 and ga != gb:
+            return False
+    return True
+
+
+def resolve_chains(
+    mentions: Sequence[Mention],
+    parses: Sequence[ParsedText],
+    side: Side,
+    use_gender: bool,
+) -> Resolution:
+    """Group one side's mentions into chains. `parses` are that side's segments, indexed by Mention.seg."""
+    ms = sorted(mentions, key=_order)
+    cl = _Clusters(ms)
+    certainty: dict[str, float] = {}
+    antecedent: dict[str, str] = {}
+
+    def try_union(a: Mention, b: Mention) -> bool:
+        if _compatible(cl.members(a.id), cl.members(b.id), use_gender):
+            cl.union(a.id, b.id)
+            return True
+        return False
+
+    names = [m for m in ms if m.kind == "name"]
+    # Pass 1: exact name match.
+    for i, a in enumerate(names):
+        for b in names[i + 1:]:
+            if a.key == b.key:
+                try_union(a, b)
+
+    # Pass 2: structure inside a segment: apposition, name-internal compounds, predicate nominatives.
+    by_seg_head: dict[tuple[int, int], Mention] = {}
+    for m in ms:
+        if m.kind != "zero":
+            for t in m.tokens:
+                by_seg_head[(m.seg, t)] = m
+    for m in ms:
+        if m.kind not in ("name", "noun"):
+            continue
+        tok = parses[m.seg].tokens[m.head]
+        if tok.deprel in ("appos", "compound", "flat", "flat:name", "nmod:appos") and not tok.is_root:
+            other = by_seg_head.get((m.seg, tok.head))
+            if other is not None and other.kind in ("name", "noun") and other is not m:
+                try_union(other, m)
+        # "A es ministra" (UD: copular predicate nominal) and "A is the minister" (ClearNLP: attr of be).
+        if tok.deprel in ("nsubj",):
+            head = parses[m.seg].tokens[tok.head]
+            pred = by_seg_head.get((m.seg, head.i))
+            has_cop = any(k.deprel == "cop" for k in parses[m.seg].children(head.i))
+            if pred is not None and pred is not m and has_cop and pred.kind in ("name", "noun"):
+                try_union(m, pred)
+            if head.lemma.lower() == "be":
+                for k in parses[m.seg].children(head.i):
+                    if k.deprel == "attr" and (m.seg, k.i) in by_seg_head:
+                        try_union(m, by_seg_head[(m.seg, k.i)])
+
+    # Pass 3: partial name match: one name's words contained in another's ("Zubelzu" in "Amaia Zubelzu").
+    for i, a in enumerate(names):
+        for b in names[i + 1:]:
+            if cl.find(a.id) == cl.find(b.id):
+                continue
+            wa, wb = set(a.key.split()), set(b.key.split())
+            if wa <= wb or wb <= wa:
+                shorter = wa if len(wa) <= len(wb) else wb
+                # A lone first name shared by two different full names is not enough.
+                if _unique_container(shorter, names, cl):
+                    try_union(a, b)
+
+    # Pass 4: the zero subject of a coordinated verb shares the subject of the first conjunct.
+    subj_of_clause: dict[tuple[int, int], Mention] = {}
+    for m in ms:
+        if m.role in ("nsubj", "nsubj:pass") and m.clause >= 0 and m.pron_type != "possessive":
+            subj_of_clause.setdefault((m.seg, m.clause), m)
+    for m in ms:
+        if m.kind != "zero":
+            continue
+        t = parses[m.seg].tokens[m.head]
+        if t.deprel == "conj" and (m.seg, t.head) in subj_of_clause:
+            other = subj_of_clause[(m.seg, t.head)]
+            if other is not m and try_union(other, m):
+                antecedent[m.id] = other.id
+
+    # Pass 5: role-noun head match ("la ministra ... la ministra").
+    nouns = [m for m in ms if m.kind == "noun"]
+    for i, a in enumerate(nouns):
+        for b in nouns[i + 1:]:
+            if a.key == b.key and cl.find(a.id) != cl.find(b.id):
+                try_union(a, b)
+
+    # Pass 6: pronouns and zero subjects, in text order, to the most salient compatible preceding cluster.
+    for m in ms:
+        if m.kind not in ("pronoun", "zero") or m.id in antecedent:
+            continue
+        best, alternatives = _pick_antecedent(m, ms, cl, parses, use_gender)
+        if best is None:
+            continue
+        if try_union(best, m):
+            antecedent[m.id] = best.id
+            # Another compatible cluster nearly as salient makes the choice uncertain.
+            certainty[m.id] = 1.0 if not alternatives else 0.5
+
+    groups: dict[str, list[Mention]] = {}
+    for m in ms:
+        groups.setdefault(cl.find(m.id), []).append(m)
+    chains, chain_of = [], {}
+    prefix = "S" if side == "source" else "T"
+    for n, (_, members) in enumerate(sorted(groups.items(), key=lambda kv: _order(kv[1][0])), 1):
+        cid = f"{prefix}{n}"
+        chains.append(Chain(cid, side, tuple(members)))
+        for mm in members:
+            chain_of[mm.id] = cid
+    return Resolution(chains, chain_of, certainty, antecedent)
+
+
+def _unique_container(words: set[str], names: Sequence[Mention], cl: _Clusters) -> bool:
+    containers = {cl.find(n.id) for n in names if words < set(n.key.split())}
+    return len(containers) <= 1
+
+
+def _salience(cand: Mention, m: Mention) -> float:
+    distance = m.seg - cand.seg
+    score = -1.0 * distance
+    if cand.role in ("nsubj", "nsubj:pass"):
+        score += 0.6
+    if cand.kind in ("name", "noun"):
+        score += 0.2
+    if cand.seg == m.seg and cand.sent == m.sent:
+        score += 0.3
+    return score
+
+
+def _pick_antecedent(m, ms, cl, parses, use_gender):
+    """The best preceding candidate for a pronoun or zero subject, and the compatible alternatives near it."""
+    scored: dict[str, tuple[float, Mention]] = {}
+    for c in ms:
+        if _order(c) >= _order(m) or m.seg - c.seg > PRONOUN_WINDOW:
+            continue
+        if c.kind == "pronoun" and c.pron_type == "possessive" and c.seg == m.seg:
+            continue
+        if cl.find(c.id) == cl.find(m.id):
+            continue
+        # Binding: a non-reflexive personal pronoun does not corefer with the subject of its own clause.
+        if (
+            m.kind == "pronoun"
+            and m.pron_type == "personal"
+            and m.role not in ("nsubj", "nsubj:pass")
+            and c.seg == m.seg
+            and c.clause == m.clause
+            and c.role in ("nsubj", "nsubj:pass")
+        ):
+            continue
+        # A reflexive takes the subject of its own clause.
+        if m.pron_type == "reflexive" and not (c.seg == m.seg and c.clause == m.clause):
+            continue
+        if not _compatible(cl.members(c.id), [m], use_gender):
+            continue
+        s = _salience(c, m)
+        root = cl.find(c.id)
+        if root not in scored or s > scored[root][0]:
+            scored[root] = (s, c)
+    if not scored:
+        return None, []
+    ranked = sorted(scored.values(), key=lambda x: -x[0])
+    best_score, best = ranked[0]
+    alternatives = [c for s, c in ranked[1:] if best_score - s < 0.75]
+    if not use_gender and alternatives and m.gender:
+        # Gender-blind side: an alternative only matters when its gender would fit the pronoun.
+        alternatives = [c for c in alternatives if m.gender in (_genders(cl.members(c.id)) or {m.gender})]
+    return best, alternatives

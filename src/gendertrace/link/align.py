@@ -1,0 +1,125 @@
+"""Word alignment of each segment pair: statistical (eflomal, trained on the batch itself) plus anchored links.
+
+Statistical alignment needs data: on a batch of fewer than MIN_STATISTICAL segments it is skipped and the
+anchors (identical words, the person-noun lexicon, pronoun correspondences) and a positional fallback for verbs
+carry the linking alone.
+"""
+
+from __future__ import annotations
+
+import logging
+import os
+import tempfile
+from collections.abc import Sequence
+
+from gendertrace.model import ParsedText
+
+log = logging.getLogger(__name__)
+
+MIN_STATISTICAL = 60
+Alignment = frozenset[tuple[int, int]]  # (source token index, target token index)
+
+
+def _words(p: ParsedText) -> list[str]:
+    return [t.text.lower().replace(" ", "_") or "_" for t in p.tokens]
+
+
+def statistical_alignments(
+    sources: Sequence[ParsedText], targets: Sequence[ParsedText], seed: int = 1
+) -> list[Alignment] | None:
+    """Symmetrised eflomal alignments for every pair, or None when eflomal is unavailable or the batch too small."""
+    if len(sources) < MIN_STATISTICAL:
+        return None
+    try:
+        import eflomal
+    except ImportError:  # pragma: no cover - eflomal is a core dependency; kept for partial installs
+        log.warning("eflomal not importable: falling back to anchored alignment")
+        return None
+    src = [" ".join(_words(p)) or "_" for p in sources]
+    tgt = [" ".join(_words(p)) or "_" for p in targets]
+    with tempfile.TemporaryDirectory() as tmp:
+        fwd, rev = os.path.join(tmp, "fwd"), os.path.join(tmp, "rev")
+        # eflomal samples with C's rand(); fixing the process seed keeps runs repeatable.
+        import random
+
+        random.seed(seed)
+        eflomal.Aligner().align(src, tgt, links_filename_fwd=fwd, links_filename_rev=rev, quiet=True)
+        with open(fwd, encoding="utf-8") as f_fwd, open(rev, encoding="utf-8") as f_rev:
+            fwd_lines, rev_lines = f_fwd.read().splitlines(), f_rev.read().splitlines()
+    out = []
+    for k in range(len(sources)):
+        a = _parse_links(fwd_lines[k] if k < len(fwd_lines) else "")
+        b = _parse_links(rev_lines[k] if k < len(rev_lines) else "")
+        out.append(symmetrise(a, b))
+    return out
+
+
+def _parse_links(line: str) -> set[tuple[int, int]]:
+    links = set()
+    for item in line.split():
+        i, j = item.split("-")
+        links.add((int(i), int(j)))
+    return links
+
+
+def symmetrise(fwd: set[tuple[int, int]], rev: set[tuple[int, int]]) -> Alignment:
+    """Intersection, grown with union links next to it or on otherwise unaligned words (grow-diag in spirit)."""
+    inter = fwd & rev
+    union = fwd | rev
+    out = set(inter)
+    src_done = {i for i, _ in out}
+    tgt_done = {j for _, j in out}
+    for i, j in sorted(union - inter):
+        near = any(abs(i - a) <= 1 and abs(j - b) <= 1 for a, b in out)
+        if near or i not in src_done or j not in tgt_done:
+            out.add((i, j))
+            src_done.add(i)
+            tgt_done.add(j)
+    return frozenset(out)
+
+
+def anchor_alignment(
+    src: ParsedText,
+    tgt: ParsedText,
+    lexicon: dict[str, frozenset[str]],
+    pronoun_pairs: set[tuple[str, str]],
+) -> tuple[Alignment, Alignment]:
+    """Anchored links as (strong, weak).
+
+    strong: identical words (names, numbers), person nouns via the lexicon, pronoun pairs;
+    weak: each target verb to the source verb at the nearest relative position in the segment.
+    """
+    links = set()
+    s_toks, t_toks = src.tokens, tgt.tokens
+    for s in s_toks:
+        sl = s.text.lower()
+        for t in t_toks:
+            tl = t.text.lower()
+            if s.upos == "PUNCT" or t.upos == "PUNCT":
+                continue
+            if (sl == tl and (s.upos in ("PROPN", "NUM") or len(sl) > 3)) or tl in lexicon.get(sl, ()):
+                links.add((s.i, t.i))
+            elif (sl, tl) in pronoun_pairs:
+                links.add((s.i, t.i))
+    # Verbs by relative position: a weak fallback used only where no other link covers the verb.
+    weak = set()
+    s_verbs = [s for s in s_toks if s.upos in ("VERB", "AUX")]
+    t_verbs = [t for t in t_toks if t.upos in ("VERB", "AUX")]
+    if s_verbs and t_verbs:
+        ns, nt = max(len(s_toks), 1), max(len(t_toks), 1)
+        for t in t_verbs:
+            best = min(s_verbs, key=lambda s: abs(s.i / ns - t.i / nt))
+            if abs(best.i / ns - t.i / nt) < 0.2:
+                weak.add((best.i, t.i))
+    return frozenset(links), frozenset(weak)
+
+
+def merge(statistical: Alignment | None, strong: Alignment, weak: Alignment) -> Alignment:
+    """Strong anchors win for the target words they cover, statistical links fill in the rest, and weak
+    anchors only the target words still unaligned."""
+    out = set(strong)
+    covered = {j for _, j in out}
+    out |= {(i, j) for i, j in (statistical or ()) if j not in covered}
+    covered = {j for _, j in out}
+    out |= {(i, j) for i, j in weak if j not in covered}
+    return frozenset(out)

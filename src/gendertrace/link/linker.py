@@ -1,0 +1,125 @@
+"""Cross-lingual links: each target mention to the source chain of the person it refers to.
+
+Methods, most certain first: names by string identity, role nouns through the bilingual lexicon, word alignment
+of the mention itself, subject-verb projection (a target subject links to the overt or zero subject of the aligned
+source clause; this is what carries pro-drop sources), and finally inheritance through the target chain.
+"""
+
+from __future__ import annotations
+
+from collections import Counter
+from collections.abc import Sequence
+
+from gendertrace.coref.sieves import Resolution
+from gendertrace.link.align import Alignment
+from gendertrace.model import Link, Mention, ParsedText
+
+CONF_NAME = 1.0
+CONF_LEXICON = 0.95
+CONF_ALIGNED = 0.85
+CONF_PROJECTED = 0.8
+CONF_CHAIN = 0.8
+SUBJECTS = ("nsubj", "nsubj:pass")
+CLAUSE_FUNCTION_RELS = ("cop", "aux", "aux:pass", "aux:tense")
+
+
+def _clause_of(parsed: ParsedText, i: int) -> int:
+    """The clause head a token belongs to as a verb: auxiliaries and copulas stand for their head."""
+    t = parsed.tokens[i]
+    return t.head if t.deprel in CLAUSE_FUNCTION_RELS and not t.is_root else i
+
+
+def link_mentions(
+    src_mentions: Sequence[Mention],
+    tgt_mentions: Sequence[Mention],
+    src_res: Resolution,
+    tgt_res: Resolution,
+    src_parses: Sequence[ParsedText],
+    tgt_parses: Sequence[ParsedText],
+    alignments: Sequence[Alignment],
+    lexicon: dict[str, frozenset[str]],
+) -> dict[str, Link]:
+    """A link for every target mention that can be tied to a source chain, keyed by target mention id."""
+    by_token: dict[tuple[int, int], Mention] = {}
+    subject_of: dict[tuple[int, int], Mention] = {}
+    for m in src_mentions:
+        if m.kind != "zero":
+            for t in m.tokens:
+                by_token[(m.seg, t)] = m
+        if m.role in SUBJECTS and m.pron_type != "possessive" and m.clause >= 0:
+            # Overt subjects win over a zero subject of the same clause (there should be none, but parses vary).
+            key = (m.seg, m.clause)
+            if key not in subject_of or subject_of[key].kind == "zero":
+                subject_of[key] = m
+    src_names = [m for m in src_mentions if m.kind == "name"]
+    chain = src_res.chain_of
+    links: dict[str, Link] = {}
+
+    def aligned_sources(seg: int, tgt_tokens: Sequence[int]) -> list[int]:
+        al = alignments[seg] if seg < len(alignments) else frozenset()
+        wanted = set(tgt_tokens)
+        return sorted({i for i, j in al if j in wanted})
+
+    for m in tgt_mentions:
+        link = None
+        if m.kind == "name":
+            link = _name_link(m, src_names, chain)
+        if link is None and m.kind == "noun":
+            cands = [s for s in src_mentions if s.seg == m.seg and s.kind == "noun"
+                     and m.text.lower() in lexicon.get(s.text.lower(), ())]
+            if len({chain[c.id] for c in cands}) == 1:
+                link = Link(m.id, chain[cands[0].id], "lexicon", CONF_LEXICON)
+        if link is None and m.kind != "zero":
+            hits = {chain[by_token[(m.seg, i)].id] for i in aligned_sources(m.seg, m.tokens)
+                    if (m.seg, i) in by_token}
+            if len(hits) == 1:
+                link = Link(m.id, hits.pop(), "alignment", CONF_ALIGNED)
+        if link is None and (m.role in SUBJECTS or m.kind == "zero") and m.pron_type != "possessive":
+            link = _projected(m, tgt_parses[m.seg], src_parses[m.seg], aligned_sources, subject_of, chain)
+        if link is not None:
+            links[m.id] = link
+
+    # Inheritance through the target chain, for mentions no direct method reached.
+    members: dict[str, list[Mention]] = {}
+    for m in tgt_mentions:
+        members.setdefault(tgt_res.chain_of[m.id], []).append(m)
+    for m in tgt_mentions:
+        if m.id in links:
+            continue
+        votes = Counter(links[o.id].source_chain for o in members[tgt_res.chain_of[m.id]] if o.id in links)
+        if votes:
+            (best, n), *rest = votes.most_common()
+            if not rest or n > rest[0][1]:
+                conf = CONF_CHAIN * tgt_res.certainty.get(m.id, 1.0)
+                links[m.id] = Link(m.id, best, "chain", conf)
+    return links
+
+
+def _name_link(m: Mention, src_names: Sequence[Mention], chain: dict[str, str]) -> Link | None:
+    words = set(m.key.split())
+    exact = {chain[s.id] for s in src_names if s.key == m.key}
+    if len(exact) == 1:
+        return Link(m.id, exact.pop(), "name", CONF_NAME)
+    partial = {chain[s.id] for s in src_names if words and (words <= set(s.key.split()) or set(s.key.split()) <= words)}
+    if len(partial) == 1:
+        return Link(m.id, partial.pop(), "name", CONF_NAME * 0.95)
+    return None
+
+
+def _projected(m, tgt_parsed, src_parsed, aligned_sources, subject_of, chain) -> Link | None:
+    """Subject-verb projection: the target clause's aligned source clause, and that clause's subject."""
+    clause = m.clause if m.kind != "zero" else m.head
+    if clause < 0:
+        return None
+    verbs = [clause] + [k.i for k in tgt_parsed.children(clause) if k.deprel in CLAUSE_FUNCTION_RELS]
+    if m.kind == "zero":
+        verbs += list(m.tokens)
+    hits = set()
+    for i in aligned_sources(m.seg, verbs):
+        c = _clause_of(src_parsed, i)
+        subj = subject_of.get((m.seg, c))
+        if subj is not None:
+            hits.add(chain[subj.id])
+    if len(hits) == 1:
+        return Link(m.id, hits.pop(), "projection", CONF_PROJECTED)
+    return None

@@ -1,0 +1,352 @@
+"""Mentions of persons in one parsed segment, each with the gender marks the segment puts on it.
+
+A mention is a person name, a role or kinship noun, a personal/possessive/reflexive pronoun, or (in pro-drop
+languages) the zero subject of a finite verb. Its marks are the words whose form shows the person's gender:
+the pronoun itself, the noun's inflection, a determiner or adjective agreeing with the noun, a predicative
+adjective or participle agreeing with the subject, an honorific.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Iterable
+
+from gendertrace.model import EvidenceItem, Mention, ParsedText, Side, Token
+from gendertrace.rules import LanguageRules
+
+SUBJECT_RELS = {"nsubj", "nsubj:pass"}
+NAME_LINK_RELS = {"flat", "flat:name", "compound", "appos"}
+# Relations that mean a clause already has a subject, overt or expletive.
+SUBJECT_LIKE = {"nsubj", "nsubj:pass", "csubj", "csubj:pass", "expl", "expl:pass", "expl:impers", "expl:subj"}
+
+# Weights of the kinds of marks (common practice, no source; tuned on the benchmark, see docs/benchmarks.md).
+W_PRONOUN = 1.0
+W_TITLE = 1.0
+W_LEXICAL = 0.9  # an inherently gendered noun form (madre, actress) or a marked feminine role noun
+W_UNMARKED_NOUN = 0.5  # a masculine role-noun form, which is also the generic form
+W_DETERMINER = 0.8
+W_ADJECTIVE = 0.6
+W_PREDICATE = 0.7
+# Masculine agreement is also the default with no person in view ("es necesario"), so it counts for less on
+# a zero subject, whose referent is itself inferred.
+W_ZERO_MASC_PREDICATE = 0.35
+
+
+def _mark(
+    side: Side, seg: int, seg_id: str, tok: Token | list[Token], gender: str, kind: str, weight: float, rule: str
+) -> EvidenceItem:
+    toks = tok if isinstance(tok, list) else [tok]
+    start, end = toks[0].start, toks[-1].end
+    return EvidenceItem(
+        side=side,
+        seg=seg,
+        seg_id=seg_id,
+        start=start,
+        end=end,
+        text=" ".join(t.text for t in toks),
+        gender=gender,
+        kind=kind,
+        weight=weight,
+        rule=rule,
+        tokens=tuple(t.i for t in toks),
+    )
+
+
+def _is_plural(tok: Token) -> bool:
+    return tok.feat("Number") == "Plur"
+
+
+def _name_spans(parsed: ParsedText, known_names: set[str]) -> list[list[int]]:
+    """Runs of person-name tokens: NER persons, or proper-noun runs matching a name known from the other side."""
+    spans: list[list[int]] = []
+    run: list[int] = []
+    toks = parsed.tokens
+
+    def close() -> None:
+        if run:
+            spans.append(list(run))
+            run.clear()
+
+    for t in toks:
+        is_name = t.ent == "PER" and t.upos in ("PROPN", "NOUN", "X", "ADJ")
+        if is_name and run and toks[run[-1]].sent == t.sent and run[-1] == t.i - 1:
+            run.append(t.i)
+            continue
+        close()
+        if is_name:
+            run.append(t.i)
+    close()
+    if known_names:
+        taken = {i for s in spans for i in s}
+        run = []
+        for t in toks:
+            if t.upos == "PROPN" and t.i not in taken:
+                run.append(t.i)
+                continue
+            if run:
+                spans.extend(_matching_subruns(run, toks, known_names))
+                run = []
+        if run:
+            spans.extend(_matching_subruns(run, toks, known_names))
+    # Honorifics and titles tagged as part of the name are kept apart (they are marks, not the name).
+    return sorted(spans)
+
+
+def _matching_subruns(run: list[int], toks: tuple[Token, ...], known: set[str]) -> list[list[int]]:
+    words = {toks[i].text.lower() for i in run}
+    full = " ".join(toks[i].text.lower() for i in run)
+    if full in known or any(w in known for w in words):
+        return [run]
+    return []
+
+
+def name_key(text: str) -> str:
+    return " ".join(text.lower().replace("\u2019", "'").split())
+
+
+def extract_mentions(
+    parsed: ParsedText,
+    seg: int,
+    seg_id: str,
+    side: Side,
+    rules: LanguageRules,
+    known_names: Iterable[str] = (),
+) -> list[Mention]:
+    """All person mentions of one segment side, in text order, with their gender marks."""
+    known = {name_key(n) for n in known_names}
+    toks = parsed.tokens
+    prefix = f"{side[0]}{seg}."
+    out: list[Mention] = []
+    used: set[int] = set()
+
+    # Names.
+    for span in _name_spans(parsed, known):
+        words = [toks[i] for i in span]
+        # An honorific at the start of a name span is a title, not part of the name.
+        title_marks = []
+        while words and rules.honorific(words[0].text):
+            title_marks.append(_mark(side, seg, seg_id, words[0], rules.honorific(words[0].text), "title",
+                                     W_TITLE, "honorific"))
+            words = words[1:]
+        if not words:
+            continue
+        ids = [w.i for w in words]
+        head = _span_head(parsed, ids)
+        marks = title_marks + _honorifics_before(parsed, head, ids, rules, side, seg, seg_id)
+        marks += _np_marks(parsed, head, rules, side, seg, seg_id, noun_form=False)
+        role, clause = _role_and_clause(parsed, head)
+        marks += _predicate_marks(parsed, head, role, clause, rules, side, seg, seg_id, zero=False)
+        out.append(
+            Mention(
+                id=f"{prefix}{head}",
+                side=side, seg=seg, head=head, tokens=tuple(ids), kind="name",
+                text=parsed.text[words[0].start:words[-1].end], start=words[0].start, end=words[-1].end,
+                number="sing", person="3", role=role, clause=clause, key=name_key(" ".join(w.text for w in words)),
+                marks=tuple(marks), sent=toks[head].sent,
+            )
+        )
+        used.update(ids)
+
+    for t in toks:
+        if t.i in used:
+            continue
+        # Role and kinship nouns.
+        if t.upos in ("NOUN", "PROPN") and rules.is_person_noun(t.text) and not _is_plural(t):
+            gender, counterpart = rules.noun_counterpart(t.text)
+            marks = []
+            if gender == "fem" or (gender == "masc" and not rules.articles):
+                # Languages without gendered articles (English) have only inherently gendered nouns here.
+                marks.append(_mark(side, seg, seg_id, t, gender, "lexical", W_LEXICAL, "gendered noun"))
+            elif gender == "masc":
+                marks.append(_mark(side, seg, seg_id, t, gender, "lexical", W_UNMARKED_NOUN, "masculine noun form"))
+            marks += _honorifics_before(parsed, t.i, [t.i], rules, side, seg, seg_id)
+            marks += _np_marks(parsed, t.i, rules, side, seg, seg_id, noun_form=True)
+            role, clause = _role_and_clause(parsed, t.i)
+            marks += _predicate_marks(parsed, t.i, role, clause, rules, side, seg, seg_id, zero=False)
+            masc_key = counterpart if gender == "fem" else t.text.lower()
+            out.append(
+                Mention(
+                    id=f"{prefix}{t.i}", side=side, seg=seg, head=t.i, tokens=(t.i,), kind="noun", text=t.text,
+                    start=t.start, end=t.end, number="sing", person="3", role=role, clause=clause,
+                    key=masc_key, marks=tuple(marks), sent=t.sent,
+                )
+            )
+            continue
+        # Pronouns.
+        if t.upos in ("PRON", "DET") and rules.pronoun(t.text):
+            form = _pick_pronoun_form(t, rules)
+            if form is None or form.number == "plur":
+                continue
+            if form.type == "reflexive" and form.gender is None:
+                continue  # "se", "sí": mostly impersonal or passive markers, and never gendered
+            marks = []
+            if form.gender:
+                marks.append(_mark(side, seg, seg_id, t, form.gender, "pronoun", W_PRONOUN, f"{form.type} pronoun"))
+            role, clause = _role_and_clause(parsed, t.i)
+            if form.type == "personal":
+                marks += _predicate_marks(parsed, t.i, role, clause, rules, side, seg, seg_id, zero=False)
+            out.append(
+                Mention(
+                    id=f"{prefix}{t.i}", side=side, seg=seg, head=t.i, tokens=(t.i,), kind="pronoun", text=t.text,
+                    start=t.start, end=t.end, number=form.number, person="3", pron_type=form.type, role=role,
+                    clause=clause, key=t.text.lower(), marks=tuple(marks), sent=t.sent, animate=form.animate,
+                )
+            )
+
+    if rules.pro_drop:
+        out += _zero_subjects(parsed, seg, seg_id, side, rules, prefix)
+    out.sort(key=lambda m: (m.start, m.kind == "zero"))
+    return out
+
+
+def _pick_pronoun_form(t: Token, rules: LanguageRules):
+    forms = rules.pronoun(t.text)
+    if t.upos == "DET" and not any(f.type == "possessive" for f in forms):
+        return None  # "la", "le", "el" as articles
+    poss = t.feat("Poss") == "Yes" or t.deprel == "nmod:poss"
+    wanted = "possessive" if poss else None
+    for f in forms:
+        if wanted and f.type == wanted:
+            return f
+    for f in forms:
+        if not wanted and f.type != "possessive":
+            return f
+    return forms[0]
+
+
+def _span_head(parsed: ParsedText, ids: list[int]) -> int:
+    inside = set(ids)
+    for i in ids:
+        if parsed.tokens[i].head not in inside or parsed.tokens[i].is_root:
+            return i
+    return ids[-1]
+
+
+def _role_and_clause(parsed: ParsedText, i: int) -> tuple[str, int]:
+    """The mention's relation in its clause and the clause head (climbing name-internal and appositive links)."""
+    t = parsed.tokens[i]
+    seen = 0
+    while t.deprel in NAME_LINK_RELS and not t.is_root and seen < 4:
+        h = parsed.tokens[t.head]
+        if h.upos not in ("PROPN", "NOUN"):
+            break
+        t = h
+        seen += 1
+    return t.deprel, (t.i if t.is_root else t.head)
+
+
+def _honorifics_before(parsed, head, ids, rules, side, seg, seg_id) -> list[EvidenceItem]:
+    marks = []
+    for c in parsed.children(head):
+        if c.i in ids:
+            continue
+        g = rules.honorific(c.text)
+        if g and c.deprel in ("compound", "flat", "flat:name", "appos", "nmod", "det", "amod") and c.i < head:
+            marks.append(_mark(side, seg, seg_id, c, g, "title", W_TITLE, "honorific"))
+    # "el señor García": the honorific may be the head with the name under it.
+    h = parsed.head_of(head)
+    if h is not None and h.i < head and rules.honorific(h.text):
+        marks.append(_mark(side, seg, seg_id, h, rules.honorific(h.text), "title", W_TITLE, "honorific"))
+    return marks
+
+
+def _np_marks(parsed, head, rules, side, seg, seg_id, noun_form: bool) -> list[EvidenceItem]:
+    """Determiners and adjectives inside the noun phrase that agree with a person noun or name."""
+    if not rules.dependents:
+        return []
+    marks = []
+    for c in parsed.children(head):
+        if c.deprel not in rules.dependents or _is_plural(c):
+            continue
+        if c.feat("Poss") == "Yes" or rules.pronoun(c.text) and c.upos == "PRON":
+            continue  # possessives agree with the possessed noun, not with the person (rules: possessed)
+        if c.deprel.startswith("det"):
+            g = rules.article_gender(c.text)
+            if g is None and c.feat("PronType") in ("Art", "Dem"):
+                g = c.gender
+            if g in ("fem", "masc") and c.i < head:
+                marks.append(_mark(side, seg, seg_id, c, g, "morphology", W_DETERMINER, "determiner agreement"))
+        elif c.upos in ("ADJ", "VERB") and c.gender in ("fem", "masc"):
+            if c.gender == "masc" and not noun_form:
+                continue  # an adjective on a bare name: too often an unrelated modifier
+            marks.append(_mark(side, seg, seg_id, c, c.gender, "agreement", W_ADJECTIVE, "adjective agreement"))
+    return marks
+
+
+def _predicate_marks(parsed, i, role, clause, rules, side, seg, seg_id, zero: bool) -> list[EvidenceItem]:
+    """Predicative adjectives, nouns and participles that agree with the subject of their clause."""
+    if role not in SUBJECT_RELS and not zero:
+        return []
+    if not rules.copulas and not rules.agreeing_aux:
+        return []
+    if clause < 0 or clause == i:
+        return []
+    pred = parsed.tokens[clause]
+    marks = []
+    kids = parsed.children(clause)
+    aux_lemmas = {k.lemma.lower() for k in kids if k.deprel in ("aux", "aux:pass", "aux:tense", "cop")}
+    has_cop = any(k.deprel == "cop" for k in kids)
+    has_pass = any(k.deprel == "aux:pass" for k in kids)
+
+    def add(tok: Token, rule: str) -> None:
+        g = tok.gender
+        if g not in ("fem", "masc") or _is_plural(tok):
+            return
+        if tok.upos in ("NOUN", "PROPN"):
+            if not rules.is_person_noun(tok.text):
+                return  # "es un problema": a thing's grammatical gender
+            ng = rules.noun_counterpart(tok.text)[0]
+            if ng not in ("fem", "masc"):
+                return
+            g = ng
+        weight = W_ZERO_MASC_PREDICATE if zero and g == "masc" else W_PREDICATE
+        marks.append(_mark(side, seg, seg_id, tok, g, "agreement", weight, rule))
+
+    if has_cop and pred.upos in ("ADJ", "NOUN", "VERB"):
+        add(pred, "predicative with copula")
+    elif pred.upos in ("VERB", "ADJ") and pred.feat("VerbForm") == "Part":
+        if aux_lemmas & rules.invariable_aux and not has_pass:
+            pass  # compound tense: invariable participle, no evidence about the subject
+        elif has_pass or aux_lemmas & rules.agreeing_aux:
+            add(pred, "participle with agreeing auxiliary")
+    # Secondary predicates ("quedó sorprendida", "se mostró convencida").
+    if pred.lemma.lower() in rules.copulas:
+        for k in kids:
+            if k.deprel == "xcomp" and k.upos in ("ADJ", "VERB") and (k.upos == "ADJ" or k.feat("VerbForm") == "Part"):
+                add(k, "secondary predicate")
+    return marks
+
+
+def _zero_subjects(parsed, seg, seg_id, side, rules, prefix) -> list[Mention]:
+    """Finite 3rd-person singular clauses with no overt subject (pro-drop languages)."""
+    out = []
+    toks = parsed.tokens
+    for t in toks:
+        if t.deprel in ("cop", "aux", "aux:pass", "aux:tense", "acl:relcl", "acl", "amod", "case", "mark", "det"):
+            continue
+        kids = parsed.children(t.i)
+        finite = None
+        if t.upos in ("VERB", "AUX") and t.feat("VerbForm") == "Fin":
+            finite = t
+        else:
+            for k in kids:
+                if k.deprel in ("cop", "aux", "aux:pass") and k.feat("VerbForm") == "Fin":
+                    finite = k
+                    break
+        if finite is None or finite.feat("Person") != "3" or finite.feat("Number") != "Sing":
+            continue
+        if any(k.deprel in SUBJECT_LIKE for k in kids):
+            continue
+        lemma = (finite.lemma if finite is t else t.lemma).lower()
+        if lemma in ("haber", "hacer") and finite is t:
+            continue  # existential "hay", weather "hace frío": no subject at all
+        if any(k.text.lower() == "se" and k.deprel != "obj" for k in kids):
+            continue  # impersonal or passive "se": the clause has no person subject
+        marks = _predicate_marks(parsed, -1, "nsubj", t.i, rules, side, seg, seg_id, zero=True)
+        out.append(
+            Mention(
+                id=f"{prefix}z{t.i}", side=side, seg=seg, head=t.i, tokens=(finite.i,), kind="zero",
+                text=finite.text, start=finite.start, end=finite.end, number="sing", person="3",
+                role="nsubj", clause=t.i, key="", marks=tuple(marks), sent=finite.sent,
+            )
+        )
+    return out

@@ -1,0 +1,159 @@
+"""The scoring pipeline: documents in, one DocumentResult per document out, in input order."""
+
+from __future__ import annotations
+
+from collections.abc import Callable, Iterable, Iterator, Sequence
+from dataclasses import dataclass, field
+
+from gendertrace import __version__
+from gendertrace.coref.sieves import resolve_chains
+from gendertrace.evidence.resolve import build_entities
+from gendertrace.findings.detect import detect_findings
+from gendertrace.link.align import anchor_alignment, merge, statistical_alignments
+from gendertrace.link.linker import link_mentions
+from gendertrace.mentions.extract import extract_mentions, name_key
+from gendertrace.model import Document, DocumentResult, DocumentStats, ParsedDocument, ParsedText
+from gendertrace.parse.base import Parser, get_parser
+from gendertrace.rules import LanguageRules, load_lexicon, load_rules, rules_digest
+
+
+@dataclass
+class ScoreSettings:
+    """Everything that changes a score; recorded in the run signature."""
+
+    min_confidence: float = 0.5
+    batch_size: int = 2000  # documents whose segments are parsed and aligned together
+    parser: str = "spacy"
+    src_model: str | None = None
+    tgt_model: str | None = None
+    extra: dict = field(default_factory=dict)
+
+
+def pronoun_pairs(src: LanguageRules, tgt: LanguageRules) -> set[tuple[str, str]]:
+    """Gender-blind pronoun correspondences (same type and compatible number): anchors for the aligner."""
+    pairs = set()
+    for a, fa in src.pronouns.items():
+        for b, fb in tgt.pronouns.items():
+            if any(x.type == y.type and (x.number == y.number or None in (x.number, y.number))
+                   for x in fa for y in fb):
+                pairs.add((a, b))
+    return pairs
+
+
+class Scorer:
+    """Scores translated documents for one language direction.
+
+    Parsers default to the spaCy pipelines; pass `src_parser`/`tgt_parser` (e.g. a ConlluParser) to use
+    pre-parsed input.
+    """
+
+    def __init__(
+        self,
+        src_lang: str,
+        tgt_lang: str,
+        settings: ScoreSettings | None = None,
+        src_parser: Parser | None = None,
+        tgt_parser: Parser | None = None,
+    ) -> None:
+        self.src_lang, self.tgt_lang = src_lang, tgt_lang
+        self.settings = settings or ScoreSettings()
+        self.src_rules = load_rules(src_lang)
+        self.tgt_rules = load_rules(tgt_lang)
+        self.lexicon = load_lexicon(src_lang, tgt_lang)
+        self.pairs = pronoun_pairs(self.src_rules, self.tgt_rules)
+        s = self.settings
+        self.src_parser = src_parser or get_parser(src_lang, s.parser, s.src_model)
+        self.tgt_parser = tgt_parser or get_parser(tgt_lang, s.parser, s.tgt_model)
+
+    def signature(self) -> dict:
+        return {
+            "tool": f"gendertrace {__version__}",
+            "rules": rules_digest(),
+            "src": f"{self.src_lang}:{self.src_parser.signature()}",
+            "tgt": f"{self.tgt_lang}:{self.tgt_parser.signature()}",
+            "min_confidence": self.settings.min_confidence,
+        }
+
+    def parse(self, docs: Sequence[Document]) -> list[ParsedDocument]:
+        sources = self.src_parser.parse_many([s.source for d in docs for s in d.segments])
+        targets = self.tgt_parser.parse_many([s.target for d in docs for s in d.segments])
+        out, k = [], 0
+        for d in docs:
+            n = len(d.segments)
+            out.append(ParsedDocument(d, tuple(sources[k:k + n]), tuple(targets[k:k + n])))
+            k += n
+        return out
+
+    def score(
+        self, docs: Iterable[Document], progress: Callable[[int], None] | None = None
+    ) -> Iterator[DocumentResult]:
+        """Score documents batch by batch, yielding results in input order."""
+        batch: list[Document] = []
+        for d in docs:
+            batch.append(d)
+            if len(batch) >= self.settings.batch_size:
+                yield from self._score_batch(batch, progress)
+                batch = []
+        if batch:
+            yield from self._score_batch(batch, progress)
+
+    def _score_batch(self, docs, progress) -> Iterator[DocumentResult]:
+        parsed = self.parse(docs)
+        flat_src = [p for pd in parsed for p in pd.source]
+        flat_tgt = [p for pd in parsed for p in pd.target]
+        stat = statistical_alignments(flat_src, flat_tgt)
+        k = 0
+        for pd in parsed:
+            n = len(pd.document.segments)
+            aligns = []
+            for j in range(n):
+                strong, weak = anchor_alignment(pd.source[j], pd.target[j], self.lexicon, self.pairs)
+                aligns.append(merge(stat[k + j] if stat else None, strong, weak))
+            k += n
+            yield self.score_parsed(pd, aligns)
+            if progress:
+                progress(1)
+
+    def score_parsed(self, pd: ParsedDocument, alignments) -> DocumentResult:
+        """Score one parsed document given its per-segment word alignments."""
+        doc = pd.document
+        seg_ids = [s.seg_id for s in doc.segments]
+        src_names = _person_names(pd.source)
+        tgt_names = _person_names(pd.target)
+        src_mentions = [m for k, p in enumerate(pd.source)
+                        for m in extract_mentions(p, k, seg_ids[k], "source", self.src_rules, tgt_names)]
+        tgt_mentions = [m for k, p in enumerate(pd.target)
+                        for m in extract_mentions(p, k, seg_ids[k], "target", self.tgt_rules, src_names)]
+        # Gender agreement helps on the source, which is not being checked; it is off on the target.
+        src_res = resolve_chains(src_mentions, pd.source, "source", use_gender=True)
+        tgt_res = resolve_chains(tgt_mentions, pd.target, "target", use_gender=False)
+        links = link_mentions(src_mentions, tgt_mentions, src_res, tgt_res, pd.source, pd.target, alignments,
+                              self.lexicon)
+        entities, _ = build_entities(src_res, tgt_res, tgt_mentions, links)
+        findings, stats = detect_findings(
+            entities, links, [s.target for s in doc.segments], seg_ids, tgt_res.certainty,
+            self.settings.min_confidence,
+        )
+        return DocumentResult(doc.doc_id, self.src_lang, self.tgt_lang, tuple(entities), tuple(findings), stats,
+                              tuple(src_res.chains) + tuple(tgt_res.chains))
+
+
+def _person_names(parses: Sequence[ParsedText]) -> set[str]:
+    """Names the NER tags as persons on one side: proper nouns matching them on the other side are names too."""
+    out = set()
+    for p in parses:
+        run: list[str] = []
+        for t in p.tokens + (None,):
+            if t is not None and t.ent == "PER":
+                run.append(t.text)
+                continue
+            if run:
+                out.add(name_key(" ".join(run)))
+                out.update(name_key(w) for w in run if len(w) > 2)
+                run = []
+    return out
+
+
+def empty_result(doc: Document, src_lang: str, tgt_lang: str, why: str) -> DocumentResult:
+    stats = DocumentStats(len(doc.segments), 0, 0, 0, 0, {"contradiction": 0, "inconsistency": 0, "assumption": 0})
+    return DocumentResult(doc.doc_id, src_lang, tgt_lang, (), (), stats, skipped=why)
