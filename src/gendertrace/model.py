@@ -191,7 +191,9 @@ class Mention:
     key: str = ""  # normalised lemma or name, for matching
     marks: tuple[EvidenceItem, ...] = ()
     sent: int = 0
-    animate: bool = True  # False for pronouns that can refer to things (il, elle, lo, la) until linked
+    animate: bool = True  # False for pronouns that can also stand for things (it, lo, la)
+    case: str | None = None  # pronouns: nom, acc, dat (from the rules), else None
+    quoted: bool = False  # inside quotation marks
 
     @property
     def gender(self) -> str | None:
@@ -217,6 +219,7 @@ class Link:
     source_chain: str
     method: str  # name, lexicon, alignment, projection, chain
     confidence: float
+    via: str = ""  # the source mention the link goes through (direct methods)
 
 
 @dataclass(frozen=True)

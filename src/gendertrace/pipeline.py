@@ -35,6 +35,7 @@ def pronoun_pairs(src: LanguageRules, tgt: LanguageRules) -> set[tuple[str, str]
     for a, fa in src.pronouns.items():
         for b, fb in tgt.pronouns.items():
             if any(x.type == y.type and (x.number == y.number or None in (x.number, y.number))
+                   and (x.case == y.case or None in (x.case, y.case))
                    for x in fa for y in fb):
                 pairs.add((a, b))
     return pairs

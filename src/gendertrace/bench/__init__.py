@@ -1,1 +1,1 @@
-"""Benchmarks: coreference scores, the parallel UD treebanks, and copies of them with injected gender errors."""
+"""Benchmarks: coreference scores, the parallel UD treebanks, and copies with injected gender errors."""

@@ -1,27 +1,28 @@
 """Coreference scores over chains of mention ids: MUC, B-cubed, CEAF-e and their CoNLL mean.
 
-A *partition* here is a collection of chains; each chain is a collection of hashable mention ids. The key is the
-gold partition, the response the system's. The definitions follow the papers that introduced each metric, extended
-to predicted mentions the way the reference implementation of Pradhan et al. (2014), "Scoring Coreference
-Partitions of Predicted Mentions: A Reference Implementation", extends them:
+A *partition* here is a collection of chains; each chain is a collection of hashable mention ids. The key is
+the gold partition, the response the system's. The definitions follow the papers that introduced each metric,
+extended to predicted mentions the way the reference implementation of Pradhan et al. (2014), "Scoring
+Coreference Partitions of Predicted Mentions: A Reference Implementation", extends them:
 
-- MUC (Vilain et al. 1995): recall = sum over key chains k of (|k| - |p(k)|) / sum of (|k| - 1), where p(k) is the
-  partition of k induced by the response, and a mention of k that the response does not contain (a *twinless*
-  mention) forms a part on its own. Precision swaps key and response. Singleton chains add 0 to both sums.
+- MUC (Vilain et al. 1995): recall = sum over key chains k of (|k| - |p(k)|) / sum of (|k| - 1), where p(k) is
+  the partition of k induced by the response, and a mention of k that the response does not contain (a
+  *twinless* mention) forms a part on its own. Precision swaps key and response. Singleton chains add 0 to
+  both sums.
 - B-cubed (Bagga and Baldwin 1998): recall = sum over key chains k and response chains r of |k & r|^2 / |k|,
-  divided by the number of key mentions; precision swaps the roles. Twinless mentions add nothing to the numerator
-  and count in the denominator of their own side. Singletons count like any other chain.
+  divided by the number of key mentions; precision swaps the roles. Twinless mentions add nothing to the
+  numerator and count in the denominator of their own side. Singletons count like any other chain.
 - CEAF-e (Luo 2005): the one-to-one alignment of key and response chains that maximises the summed similarity
-  phi4(k, r) = 2 |k & r| / (|k| + |r|); recall = that sum / number of key chains, precision = that sum / number of
-  response chains. The alignment uses `scipy.optimize.linear_sum_assignment` when scipy is importable and the
-  Hungarian method implemented below otherwise (same optimum, to rounding).
+  phi4(k, r) = 2 |k & r| / (|k| + |r|); recall = that sum / number of key chains, precision = that sum /
+  number of response chains. The alignment uses `scipy.optimize.linear_sum_assignment` when scipy is
+  importable and the Hungarian method implemented below otherwise (same optimum, to rounding).
 
 Undefined ratios (a zero denominator: an empty side, or MUC over singletons only) are 0, as in the reference
-implementation, which prints 0 rather than failing (from memory); F1 is 0 when recall and precision are both 0.
-So an empty key scored against an empty response is 0 on every metric, not 1.
+implementation, which prints 0 rather than failing (from memory); F1 is 0 when recall and precision are both
+0. So an empty key scored against an empty response is 0 on every metric, not 1.
 
-Chains are read as sets: a mention repeated inside one chain counts once, and empty chains are ignored. A mention
-that occurs in two chains of the same side is not a partition, and raises ValueError.
+Chains are read as sets: a mention repeated inside one chain counts once, and empty chains are ignored. A
+mention that occurs in two chains of the same side is not a partition, and raises ValueError.
 """
 
 from __future__ import annotations
@@ -181,7 +182,7 @@ def _best_total(weights: list[list[float]]) -> float:
         return 0.0
     if _linear_sum_assignment is not None:
         rows, cols = _linear_sum_assignment(weights, maximize=True)
-        return float(sum(weights[i][j] for i, j in zip(rows, cols)))
+        return float(sum(weights[i][j] for i, j in zip(rows, cols, strict=True)))
     return sum(weights[i][j] for i, j in max_weight_matching(weights))
 
 
@@ -189,7 +190,8 @@ def _ceaf(key: Chains, response: Chains, similarity: Callable[[frozenset, frozen
     k, r = _partition(key, "key"), _partition(response, "response")
     total = _best_total([[similarity(a, b) for b in r] for a in k])
     # with phi4 a chain's similarity to itself is 1, so the denominators are the chain counts
-    return _score(_ratio(total, sum(similarity(a, a) for a in k)), _ratio(total, sum(similarity(b, b) for b in r)))
+    recall = _ratio(total, sum(similarity(a, a) for a in k))
+    return _score(recall, _ratio(total, sum(similarity(b, b) for b in r)))
 
 
 def ceaf_e(key: Chains, response: Chains) -> Score:

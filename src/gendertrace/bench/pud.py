@@ -1,8 +1,8 @@
 """Read the parallel UD treebanks (one CoNLL-U file per language, same `sent_id`s) as aligned documents.
 
-Files are named `<lang>_pud-news.conllu` inside one folder (the benchmark reads `../shared/ud-pud` relative to the
-repository root). A document runs from a `# newdoc id` comment to the next one, as in the source-language file;
-target sentences are matched to source sentences by `sent_id`.
+Files are named `<lang>_pud-news.conllu` inside one folder (the benchmark reads `../shared/ud-pud` relative to
+the repository root). A document runs from a `# newdoc id` comment to the next one, as in the source-language
+file; target sentences are matched to source sentences by `sent_id`.
 """
 
 from __future__ import annotations
@@ -54,12 +54,12 @@ def _checked_path(data_dir: Path, lang: str) -> Path:
 
 
 def load_pud_pair(data_dir: str | Path, src_lang: str, tgt_lang: str) -> list[PudDocument]:
-    """The documents of the source treebank, each sentence paired with the target sentence of the same sent_id.
+    """The documents of the source treebank, each sentence paired with the target sentence of its sent_id.
 
-    Documents and sentences keep the source file's order and `# newdoc id` grouping; sentences before the first
-    newdoc comment form a document named after their first sent_id. Raises FileNotFoundError (with a message
-    naming the folder or file) when the folder or a language's file is missing, and InputError when a source
-    sent_id has no target sentence or a sent_id occurs twice in one file.
+    Documents and sentences keep the source file's order and `# newdoc id` grouping; sentences before the
+    first newdoc comment form a document named after their first sent_id. Raises FileNotFoundError (with a
+    message naming the folder or file) when the folder or a language's file is missing, and InputError when a
+    source sent_id has no target sentence or a sent_id occurs twice in one file.
     """
     base = Path(data_dir)
     src_path, tgt_path = _checked_path(base, src_lang), _checked_path(base, tgt_lang)

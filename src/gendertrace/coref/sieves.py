@@ -15,7 +15,9 @@ from dataclasses import dataclass, field
 from gendertrace.model import Chain, Mention, ParsedText, Side
 
 # How far back (in segments) a pronoun or zero subject looks for its antecedent.
-PRONOUN_WINDOW = 3
+PRONOUN_WINDOW = 2
+# Certainty of a pronoun's attachment by distance in segments (same, previous, two back).
+DISTANCE_CERTAINTY = (1.0, 0.9, 0.7)
 
 
 @dataclass
@@ -160,13 +162,16 @@ def resolve_chains(
     for m in ms:
         if m.kind not in ("pronoun", "zero") or m.id in antecedent:
             continue
+        if not m.animate and m.gender is None:
+            continue  # "it", "its", "ello": a thing, it joins no person
         best, alternatives = _pick_antecedent(m, ms, cl, parses, use_gender)
         if best is None:
             continue
         if try_union(best, m):
             antecedent[m.id] = best.id
-            # Another compatible cluster nearly as salient makes the choice uncertain.
-            certainty[m.id] = 1.0 if not alternatives else 0.5
+            # Another compatible cluster nearly as salient makes the choice uncertain, and so does distance.
+            far = min(m.seg - best.seg, len(DISTANCE_CERTAINTY) - 1)
+            certainty[m.id] = (1.0 if not alternatives else 0.5) * DISTANCE_CERTAINTY[far]
 
     groups: dict[str, list[Mention]] = {}
     for m in ms:
@@ -179,6 +184,18 @@ def resolve_chains(
         for mm in members:
             chain_of[mm.id] = cid
     return Resolution(chains, chain_of, certainty, antecedent)
+
+
+def _nonfinite_under(parsed: ParsedText, clause: int) -> int:
+    """For a non-finite clause head (infinitive or participle complement), the clause it depends on; else -1."""
+    if clause < 0:
+        return -1
+    t = parsed.tokens[clause]
+    finite = t.feat("VerbForm") == "Fin" or any(
+        k.feat("VerbForm") == "Fin" for k in parsed.children(clause) if k.deprel in ("aux", "cop", "aux:pass"))
+    if finite or t.is_root or t.deprel not in ("xcomp", "ccomp", "advcl"):
+        return -1
+    return t.head
 
 
 def _unique_container(words: set[str], names: Sequence[Mention], cl: _Clusters) -> bool:
@@ -206,17 +223,19 @@ def _pick_antecedent(m, ms, cl, parses, use_gender):
             continue
         if c.kind == "pronoun" and c.pron_type == "possessive" and c.seg == m.seg:
             continue
+        if not c.animate:
+            continue  # clitics that may stand for things ("lo", "la") are anaphors, never antecedents
         if cl.find(c.id) == cl.find(m.id):
             continue
-        # Binding: a non-reflexive personal pronoun does not corefer with the subject of its own clause.
-        if (
-            m.kind == "pronoun"
-            and m.pron_type == "personal"
-            and m.role not in ("nsubj", "nsubj:pass")
-            and c.seg == m.seg
-            and c.clause == m.clause
-            and c.role in ("nsubj", "nsubj:pass")
-        ):
+        # Binding: a non-reflexive personal pronoun does not corefer with the subject of its own clause, nor,
+        # as the subject of a non-finite clause ("allowed her to stay"), with the subject of the clause above.
+        if m.kind == "pronoun" and m.pron_type == "personal" and c.seg == m.seg and c.role in ("nsubj", "nsubj:pass"):
+            if m.role not in ("nsubj", "nsubj:pass") and c.clause == m.clause:
+                continue
+            if m.role in ("nsubj", "nsubj:pass") and _nonfinite_under(parses[m.seg], m.clause) == c.clause >= 0:
+                continue
+        # A speaker outside a quotation is not a person mentioned inside it, and vice versa.
+        if c.seg == m.seg and c.sent == m.sent and c.quoted != m.quoted:
             continue
         # A reflexive takes the subject of its own clause.
         if m.pron_type == "reflexive" and not (c.seg == m.seg and c.clause == m.clause):

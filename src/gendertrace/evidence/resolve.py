@@ -8,7 +8,7 @@ from __future__ import annotations
 
 import math
 from collections.abc import Iterable, Sequence
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 from gendertrace.coref.sieves import Resolution
 from gendertrace.model import Entity, EvidenceItem, Link, Mention
@@ -70,7 +70,12 @@ def build_entities(
     n = 0
     for ch in src_res.chains:
         targets = by_source_chain.get(ch.id, [])
-        evidence = dedupe([mk for m in ch.mentions for mk in m.marks] + [mk for m in targets for mk in m.marks])
+        if not any(m.animate for m in ch.mentions):
+            continue  # only pronouns that may stand for things ("it", "lo"): no person is meant
+        # A source mark counts as much as its mention is surely part of the chain.
+        source_marks = [replace(mk, weight=mk.weight * src_res.certainty.get(m.id, 1.0))
+                        for m in ch.mentions for mk in m.marks]
+        evidence = dedupe(source_marks + [mk for m in targets for mk in m.marks])
         verdict = resolve_gender(evidence)
         n += 1
         eid = f"E{n}"
@@ -80,6 +85,8 @@ def build_entities(
         for m in targets:
             entity_of_target[m.id] = eid
     for _, targets in sorted(unlinked.items(), key=lambda kv: (kv[1][0].seg, kv[1][0].start)):
+        if not any(m.animate for m in targets):
+            continue
         evidence = dedupe(mk for m in targets for mk in m.marks)
         verdict = resolve_gender(evidence)
         n += 1

@@ -65,7 +65,7 @@ def detect_findings(
             for r in target_references(m, target_texts[m.seg]):
                 refs.setdefault((r.seg, r.start, r.end), r)
         ordered = sorted(refs.values(), key=lambda r: (r.seg, r.start))
-        ordered = [r for r in ordered if r.gender in ("fem", "masc")]
+        ordered = [r for r in ordered if r.gender in ("fem", "masc") and _checkable(r.mention, links, e)]
         total_refs += len(ordered)
         if not ordered:
             continue
@@ -117,6 +117,17 @@ def detect_findings(
         consistent=consistent, findings=counts,
     )
     return findings, stats
+
+
+def _checkable(m: Mention, links: dict[str, Link], e: Entity) -> bool:
+    """A clitic that may stand for a thing ("lo", "la") is checked only when aligned to an object pronoun."""
+    if m.animate:
+        return True
+    link = links.get(m.id)
+    if link is None or link.method != "alignment":
+        return False
+    via = next((s for s in e.source_mentions if s.id == link.via), None)
+    return via is not None and via.kind == "pronoun" and via.case in ("acc", "dat")
 
 
 def _first_index(refs: Sequence[Reference], gender: str) -> int:

@@ -68,12 +68,12 @@ def link_mentions(
             cands = [s for s in src_mentions if s.seg == m.seg and s.kind == "noun"
                      and m.text.lower() in lexicon.get(s.text.lower(), ())]
             if len({chain[c.id] for c in cands}) == 1:
-                link = Link(m.id, chain[cands[0].id], "lexicon", CONF_LEXICON)
+                link = Link(m.id, chain[cands[0].id], "lexicon", CONF_LEXICON, cands[0].id)
         if link is None and m.kind != "zero":
-            hits = {chain[by_token[(m.seg, i)].id] for i in aligned_sources(m.seg, m.tokens)
-                    if (m.seg, i) in by_token}
+            via = {by_token[(m.seg, i)] for i in aligned_sources(m.seg, m.tokens) if (m.seg, i) in by_token}
+            hits = {chain[v.id] for v in via}
             if len(hits) == 1:
-                link = Link(m.id, hits.pop(), "alignment", CONF_ALIGNED)
+                link = Link(m.id, hits.pop(), "alignment", CONF_ALIGNED, min(via, key=lambda v: v.start).id)
         if link is None and (m.role in SUBJECTS or m.kind == "zero") and m.pron_type != "possessive":
             link = _projected(m, tgt_parses[m.seg], src_parses[m.seg], aligned_sources, subject_of, chain)
         if link is not None:
@@ -97,12 +97,12 @@ def link_mentions(
 
 def _name_link(m: Mention, src_names: Sequence[Mention], chain: dict[str, str]) -> Link | None:
     words = set(m.key.split())
-    exact = {chain[s.id] for s in src_names if s.key == m.key}
-    if len(exact) == 1:
-        return Link(m.id, exact.pop(), "name", CONF_NAME)
-    partial = {chain[s.id] for s in src_names if words and (words <= set(s.key.split()) or set(s.key.split()) <= words)}
-    if len(partial) == 1:
-        return Link(m.id, partial.pop(), "name", CONF_NAME * 0.95)
+    exact = [s for s in src_names if s.key == m.key]
+    if len({chain[s.id] for s in exact}) == 1:
+        return Link(m.id, chain[exact[0].id], "name", CONF_NAME, exact[0].id)
+    partial = [s for s in src_names if words and (words <= set(s.key.split()) or set(s.key.split()) <= words)]
+    if len({chain[s.id] for s in partial}) == 1:
+        return Link(m.id, chain[partial[0].id], "name", CONF_NAME * 0.95, partial[0].id)
     return None
 
 
@@ -114,12 +114,12 @@ def _projected(m, tgt_parsed, src_parsed, aligned_sources, subject_of, chain) ->
     verbs = [clause] + [k.i for k in tgt_parsed.children(clause) if k.deprel in CLAUSE_FUNCTION_RELS]
     if m.kind == "zero":
         verbs += list(m.tokens)
-    hits = set()
+    subjects = {}
     for i in aligned_sources(m.seg, verbs):
-        c = _clause_of(src_parsed, i)
-        subj = subject_of.get((m.seg, c))
+        subj = subject_of.get((m.seg, _clause_of(src_parsed, i)))
         if subj is not None:
-            hits.add(chain[subj.id])
-    if len(hits) == 1:
-        return Link(m.id, hits.pop(), "projection", CONF_PROJECTED)
+            subjects[chain[subj.id]] = subj
+    if len(subjects) == 1:
+        (cid, subj), = subjects.items()
+        return Link(m.id, cid, "projection", CONF_PROJECTED, subj.id)
     return None

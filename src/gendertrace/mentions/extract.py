@@ -9,6 +9,7 @@ adjective or participle agreeing with the subject, an honorific.
 from __future__ import annotations
 
 from collections.abc import Iterable
+from dataclasses import replace
 
 from gendertrace.model import EvidenceItem, Mention, ParsedText, Side, Token
 from gendertrace.rules import LanguageRules
@@ -20,6 +21,8 @@ SUBJECT_LIKE = {"nsubj", "nsubj:pass", "csubj", "csubj:pass", "expl", "expl:pass
 
 # Weights of the kinds of marks (common practice, no source; tuned on the benchmark, see docs/benchmarks.md).
 W_PRONOUN = 1.0
+# Clitics that also stand for things ("lo", "la"): their gender may be a noun's, so alone they settle nothing.
+W_CLITIC = 0.3
 W_TITLE = 1.0
 W_LEXICAL = 0.9  # an inherently gendered noun form (madre, actress) or a marked feminine role noun
 W_UNMARKED_NOUN = 0.5  # a masculine role-noun form, which is also the generic form
@@ -178,9 +181,12 @@ def extract_mentions(
                 continue
             if form.type == "reflexive" and form.gender is None:
                 continue  # "se", "sí": mostly impersonal or passive markers, and never gendered
+            if _is_expletive(parsed, t, rules):
+                continue
             marks = []
-            if form.gender:
-                marks.append(_mark(side, seg, seg_id, t, form.gender, "pronoun", W_PRONOUN, f"{form.type} pronoun"))
+            if form.gender and not _gender_doublet(parsed, t, rules):
+                weight = W_PRONOUN if form.animate else W_CLITIC
+                marks.append(_mark(side, seg, seg_id, t, form.gender, "pronoun", weight, f"{form.type} pronoun"))
             role, clause = _role_and_clause(parsed, t.i)
             if form.type == "personal":
                 marks += _predicate_marks(parsed, t.i, role, clause, rules, side, seg, seg_id, zero=False)
@@ -189,13 +195,66 @@ def extract_mentions(
                     id=f"{prefix}{t.i}", side=side, seg=seg, head=t.i, tokens=(t.i,), kind="pronoun", text=t.text,
                     start=t.start, end=t.end, number=form.number, person="3", pron_type=form.type, role=role,
                     clause=clause, key=t.text.lower(), marks=tuple(marks), sent=t.sent, animate=form.animate,
+                    case=form.case,
                 )
             )
 
     if rules.pro_drop:
         out += _zero_subjects(parsed, seg, seg_id, side, rules, prefix)
+    quoted = _quoted_tokens(parsed)
+    out = [replace(m, quoted=True) if m.tokens and m.tokens[0] in quoted else m for m in out]
     out.sort(key=lambda m: (m.start, m.kind == "zero"))
     return out
+
+
+def _quoted_tokens(parsed: ParsedText) -> set[int]:
+    """Tokens between quotation marks (straight quotes toggle; curly and guillemets open and close)."""
+    inside, out = False, set()
+    for t in parsed.tokens:
+        ch = t.text
+        if ch == '"':
+            inside = not inside
+            continue
+        if ch in ("“", "«", "„") and not inside:
+            inside = True
+            continue
+        if ch in ("”", "»") and inside:
+            inside = False
+            continue
+        if inside:
+            out.add(t.i)
+    return out
+
+
+def _is_expletive(parsed: ParsedText, t: Token, rules: LanguageRules) -> bool:
+    """An impersonal subject ("il faut", "il y a", "il est probable que"): refers to no one."""
+    if t.text.lower() not in rules.expletive_pronouns:
+        return False
+    if t.deprel in ("expl", "expl:subj", "expl:impers"):
+        return True
+    if t.is_root:
+        return False
+    head = parsed.tokens[t.head]
+    if head.lemma.lower() in rules.expletive_verbs:
+        return True
+    kids = parsed.children(head.i)
+    if any(k.text.lower() in rules.expletive_clitics for k in kids):
+        return True
+    if rules.expletive_copular_clause and any(k.deprel == "cop" for k in kids) and head.upos == "ADJ":
+        return any(k.deprel in ("ccomp", "csubj", "xcomp", "advcl") for k in kids)
+    return False
+
+
+def _gender_doublet(parsed: ParsedText, t: Token, rules: LanguageRules) -> bool:
+    """'he or she', 'il ou elle': a pronoun coordinated with its other-gender counterpart marks no gender."""
+    mine = {f.gender for f in rules.pronoun(t.text)}
+    partners = [parsed.tokens[t.head]] if t.deprel == "conj" and not t.is_root else []
+    partners += [k for k in parsed.children(t.i) if k.deprel == "conj"]
+    for p in partners:
+        theirs = {f.gender for f in rules.pronoun(p.text)}
+        if theirs and not (theirs & mine) and None not in theirs:
+            return True
+    return False
 
 
 def _pick_pronoun_form(t: Token, rules: LanguageRules):
@@ -266,6 +325,9 @@ def _np_marks(parsed, head, rules, side, seg, seg_id, noun_form: bool) -> list[E
             if g in ("fem", "masc") and c.i < head:
                 marks.append(_mark(side, seg, seg_id, c, g, "morphology", W_DETERMINER, "determiner agreement"))
         elif c.upos in ("ADJ", "VERB") and c.gender in ("fem", "masc"):
+            lo, hi = sorted((c.i, head))
+            if any(parsed.tokens[j].upos in ("NOUN", "PROPN") for j in range(lo + 1, hi)):
+                continue  # a noun in between: the adjective more likely goes with that noun
             if c.gender == "masc" and not noun_form:
                 continue  # an adjective on a bare name: too often an unrelated modifier
             marks.append(_mark(side, seg, seg_id, c, c.gender, "agreement", W_ADJECTIVE, "adjective agreement"))

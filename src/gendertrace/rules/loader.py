@@ -57,6 +57,10 @@ class LanguageRules:
     agreeing_aux: frozenset[str]
     passive_aux: frozenset[str]
     invariable_aux: frozenset[str]
+    expletive_pronouns: frozenset[str] = frozenset()
+    expletive_verbs: frozenset[str] = frozenset()
+    expletive_clitics: frozenset[str] = frozenset()
+    expletive_copular_clause: bool = False
 
     def pronoun(self, form: str) -> tuple[PronounForm, ...]:
         return self.pronouns.get(form.lower(), ())
@@ -105,7 +109,7 @@ def _str_list(data: dict, key: str, path: Path, where: str) -> list[str]:
 
 TOP_KEYS = {
     "language", "name", "pro_drop", "possessive_agrees_with", "pronouns", "honorifics", "articles",
-    "agreement", "person_nouns",
+    "agreement", "person_nouns", "expletives",
 }
 
 
@@ -178,6 +182,13 @@ def parse_rules(data: Any, path: Path) -> LanguageRules:
     for form in _str_list(nouns, "common", path, "person_nouns."):
         noun_genders.setdefault(form.lower(), ("common", form.lower()))
 
+    expl = data.get("expletives", {"pronouns": [], "verbs": [], "clitics": [], "copular_clause": False})
+    if not isinstance(expl, dict):
+        raise _fail(path, "expletives", f"expected a mapping, found {expl!r}")
+    expl_lists = {k: frozenset(w.lower() for w in _str_list(expl, k, path, "expletives."))
+                  for k in ("pronouns", "verbs", "clitics")}
+    copular_clause = _require(expl, "copular_clause", bool, path, "expletives.")
+
     return LanguageRules(
         lang=lang,
         name=name,
@@ -189,6 +200,10 @@ def parse_rules(data: Any, path: Path) -> LanguageRules:
         articles=articles,
         noun_genders=noun_genders,
         **lists,
+        expletive_pronouns=expl_lists["pronouns"],
+        expletive_verbs=expl_lists["verbs"],
+        expletive_clitics=expl_lists["clitics"],
+        expletive_copular_clause=copular_clause,
     )
 
 

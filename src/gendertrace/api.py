@@ -1,0 +1,127 @@
+"""Python API with the powers of the command line: score a file, summarise, explain one document."""
+
+from __future__ import annotations
+
+import json
+from collections.abc import Iterable
+from dataclasses import dataclass, field
+from pathlib import Path
+
+from gendertrace.io.readers import read_corpus_with_report
+from gendertrace.model import Document, DocumentResult
+from gendertrace.pipeline import Scorer
+
+
+@dataclass
+class Summary:
+    """Corpus totals, aggregated from per-document statistics."""
+
+    documents: int = 0
+    segments: int = 0
+    untranslated: int = 0
+    entities: int = 0
+    target_references: int = 0
+    checked: int = 0
+    consistent: int = 0
+    findings: dict[str, int] = field(
+        default_factory=lambda: {"contradiction": 0, "inconsistency": 0, "assumption": 0}
+    )
+
+    def add(self, r: DocumentResult) -> None:
+        self.documents += 1
+        s = r.stats
+        self.segments += s.segments
+        self.entities += s.entities
+        self.target_references += s.target_references
+        self.checked += s.checked
+        self.consistent += s.consistent
+        for k, v in s.findings.items():
+            self.findings[k] = self.findings.get(k, 0) + v
+
+    @property
+    def rate(self) -> float | None:
+        """Consistent over checked gendered target references; None when nothing could be checked."""
+        return self.consistent / self.checked if self.checked else None
+
+    def table(self) -> str:
+        rate = "n/a (nothing checkable)" if self.rate is None else f"{self.rate:.3f}"
+        rows = [
+            ("documents", str(self.documents)),
+            ("segments", f"{self.segments} ({self.untranslated} untranslated, skipped)"),
+            ("entities", str(self.entities)),
+            ("gendered target references", str(self.target_references)),
+            ("checked against evidence", str(self.checked)),
+            ("consistent", str(self.consistent)),
+            ("contradiction findings", str(self.findings.get("contradiction", 0))),
+            ("inconsistency findings", str(self.findings.get("inconsistency", 0))),
+            ("assumption findings", str(self.findings.get("assumption", 0))),
+            ("consistency rate", rate),
+        ]
+        width = max(len(k) for k, _ in rows)
+        return "\n".join(f"{k:<{width}}  {v}" for k, v in rows)
+
+
+def write_results(results: Iterable[DocumentResult], out) -> Summary:
+    """Write one JSON object per document to the open text stream `out`, returning the totals."""
+    summary = Summary()
+    for r in results:
+        out.write(json.dumps(r.to_json(), ensure_ascii=False) + "\n")
+        out.flush()
+        summary.add(r)
+    return summary
+
+
+def score_documents(scorer: Scorer, docs: list[Document], progress: bool = False) -> list[DocumentResult]:
+    """Score documents in memory; results in input order."""
+    return list(_with_progress(scorer, docs, progress))
+
+
+def _with_progress(scorer: Scorer, docs: list[Document], progress: bool):
+    if not progress:
+        yield from scorer.score(docs)
+        return
+    from tqdm import tqdm
+
+    with tqdm(total=len(docs), unit="doc", desc="scoring", leave=False) as bar:
+        yield from scorer.score(docs, progress=bar.update)
+
+
+def score_file(input_path, out_path, scorer: Scorer, fmt: str | None = None, progress: bool = False) -> Summary:
+    """Read INPUT, score it, write OUT (JSONL) and OUT.signature.json; return the corpus summary."""
+    docs, report = read_corpus_with_report(input_path, fmt)
+    out_path = Path(out_path)
+    out_path.parent.mkdir(parents=True, exist_ok=True)
+    with open(out_path, "w", encoding="utf-8") as out:
+        summary = write_results(_with_progress(scorer, docs, progress), out)
+    summary.untranslated = len(report.untranslated)
+    signature = dict(scorer.signature(), input=str(input_path), documents=summary.documents)
+    Path(str(out_path) + ".signature.json").write_text(json.dumps(signature, indent=2) + "\n", encoding="utf-8")
+    return summary
+
+
+def explain_document(scorer: Scorer, doc: Document) -> str:
+    """A terminal rendering of one document: segments, chains, entities with evidence, findings."""
+    result = next(iter(scorer.score([doc])))
+    lines = [f"document {doc.doc_id}  ({scorer.src_lang} -> {scorer.tgt_lang})", ""]
+    for k, s in enumerate(doc.segments):
+        lines.append(f"  [{s.seg_id}] src: {s.source}")
+        lines.append(f"  {' ' * (len(s.seg_id) + 2)} tgt: {s.target}")
+    lines += ["", "chains:"]
+    for c in result.chains:
+        lines.append(f"  {c.id} ({c.side}): " + " | ".join(
+            f"{m.text}@{doc.segments[m.seg].seg_id}" + (" (zero subject)" if m.kind == "zero" else "")
+            for m in c.mentions))
+    lines += ["", "entities:"]
+    for e in result.entities:
+        g = e.gender or "unknown"
+        lines.append(f"  {e.id} {e.label!r}: {g} (confidence {e.confidence:.2f})")
+        for ev in e.evidence:
+            lines.append(f"      {ev.side:<6} [{ev.seg_id}] {ev.text!r:<18} {ev.gender:<5} {ev.kind} ({ev.rule}, "
+                         f"weight {ev.weight:.2f})")
+    lines += ["", "findings:" if result.findings else "findings: none"]
+    for f in result.findings:
+        lines.append(f"  {f.kind} [{f.seg_id}] {f.start}-{f.end} {f.text!r}: expected {f.expected}, found "
+                     f"{f.found}, confidence {f.confidence:.2f} ({f.entity})")
+    s = result.stats
+    lines += ["", f"checked {s.checked} of {s.target_references} gendered target references; {s.consistent} consistent"]
+    return "\n".join(lines)
