@@ -99,18 +99,28 @@ class Scorer:
             yield from self._score_batch(batch, progress)
 
     def _score_batch(self, docs, progress) -> Iterator[DocumentResult]:
-        parsed = self.parse(docs)
+        yield from self.score_parsed_batch(self.parse(docs), progress)
+
+    def align(self, parsed: Sequence[ParsedDocument]) -> list[list]:
+        """Word alignments of every segment of a batch: statistical over the batch, merged with anchors."""
         flat_src = [p for pd in parsed for p in pd.source]
         flat_tgt = [p for pd in parsed for p in pd.target]
         stat = statistical_alignments(flat_src, flat_tgt)
-        k = 0
+        out, k = [], 0
         for pd in parsed:
-            n = len(pd.document.segments)
             aligns = []
-            for j in range(n):
+            for j in range(len(pd.document.segments)):
                 strong, weak = anchor_alignment(pd.source[j], pd.target[j], self.lexicon, self.pairs)
                 aligns.append(merge(stat[k + j] if stat else None, strong, weak))
-            k += n
+            k += len(pd.document.segments)
+            out.append(aligns)
+        return out
+
+    def score_parsed_batch(
+        self, parsed: Sequence[ParsedDocument], progress: Callable[[int], None] | None = None
+    ) -> Iterator[DocumentResult]:
+        """Score already parsed documents (aligned together as one batch), in order."""
+        for pd, aligns in zip(parsed, self.align(parsed), strict=True):
             yield self.score_parsed(pd, aligns)
             if progress:
                 progress(1)

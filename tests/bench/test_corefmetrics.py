@@ -25,9 +25,9 @@ def close(score: Score, recall: float, precision: float, f1: float | None = None
     return (score.recall, score.precision, score.f1) == pytest.approx((recall, precision, f1), abs=tol)
 
 
-# ---------------------------------------------------------------------------------------------------------------
-# Vilain et al. 1995, "A Model-Theoretic Coreference Scoring Scheme": one key chain A-B-C-D answered by two chains
-# A-B and C-D loses one link of recall and none of precision; the reverse case loses precision only.
+# ------------------------------------------------------------------------------------------------------------
+# Vilain et al. 1995, "A Model-Theoretic Coreference Scoring Scheme": one key chain A-B-C-D answered by two
+# chains A-B and C-D loses one link of recall and none of precision; the reverse case loses precision only.
 # The figures R = 2/3, P = 1 are from memory; they also follow by hand from the paper's formula.
 
 
@@ -39,7 +39,7 @@ def test_muc_vilain_1995_response_joins_two_key_chains():
     assert close(muc([{"A", "B"}, {"C", "D"}], [{"A", "B", "C", "D"}]), 1.0, 2 / 3)
 
 
-# ---------------------------------------------------------------------------------------------------------------
+# ------------------------------------------------------------------------------------------------------------
 # Bagga and Baldwin 1998, "Algorithms for Scoring Coreference Chains": key chains {1..5}, {6, 7}, {8..12}.
 # Response 1 merges {6, 7} into {8..12}, response 2 merges {1..5} into {8..12}. MUC cannot tell them apart
 # (precision 90% both), B-cubed can: precision 16/21 (76%) and 7/12 (58%), recall 100%.
@@ -60,9 +60,9 @@ def test_b_cubed_bagga_baldwin_1998_penalises_the_larger_merge_more():
     assert close(b_cubed(BB_KEY, BB_RESPONSE_2), 1.0, 7 / 12)
 
 
-# ---------------------------------------------------------------------------------------------------------------
-# Luo 2005, "On Coreference Resolution Performance Metrics", Figure 1 and Table 1: the same key as above and four
-# responses: (a) and (b) as Bagga and Baldwin's, (c) everything in one chain, (d) every mention alone.
+# ------------------------------------------------------------------------------------------------------------
+# Luo 2005, "On Coreference Resolution Performance Metrics", Figure 1 and Table 1: the same key as above and
+# four responses: (a) and (b) as Bagga and Baldwin's, (c) everything in one chain, (d) every mention alone.
 # Table 1 F values (from memory, each also checked by hand): CEAF phi4 .733, .667, .294, .178;
 # B-cubed .865, .737, .545, .400; MUC .947, .947, .900 and none for (d).
 
@@ -76,7 +76,12 @@ LUO_RESPONSES = {
 
 @pytest.mark.parametrize(
     "system, ceaf_f, b3_f, muc_f",
-    [("a", 0.733, 0.865, 0.947), ("b", 0.667, 0.737, 0.947), ("c", 0.294, 0.545, 0.900), ("d", 0.178, 0.400, 0.0)],
+    [
+        ("a", 0.733, 0.865, 0.947),
+        ("b", 0.667, 0.737, 0.947),
+        ("c", 0.294, 0.545, 0.900),
+        ("d", 0.178, 0.400, 0.0),
+    ],
 )
 def test_luo_2005_table_1(system, ceaf_f, b3_f, muc_f):
     response = LUO_RESPONSES[system]
@@ -91,7 +96,7 @@ def test_ceaf_e_luo_2005_response_a_exact_fractions():
     assert close(ceaf_e(BB_KEY, BB_RESPONSE_1), total / 3, total / 2)
 
 
-# ---------------------------------------------------------------------------------------------------------------
+# ------------------------------------------------------------------------------------------------------------
 # Pradhan et al. 2014, "Scoring Coreference Partitions of Predicted Mentions: A Reference Implementation",
 # worked example (Figure 1): key {a b c} {d e f g}, response {a b} {c d} {f g h i}; e is missing from the
 # response and h, i are not in the key (twinless mentions). Published figures (from memory): MUC R = P = 0.40;
@@ -119,7 +124,7 @@ def test_conll_mean_is_the_unweighted_mean_of_the_three_f1():
     assert conll_mean(PRADHAN_KEY, PRADHAN_RESPONSE) == pytest.approx(expected)
 
 
-# ---------------------------------------------------------------------------------------------------------------
+# ------------------------------------------------------------------------------------------------------------
 # Edge cases: conventions of the reference implementation (from memory), checked against scorch below as well.
 
 
@@ -173,14 +178,16 @@ def test_score_is_frozen():
         muc([{1, 2}], [{1, 2}]).f1 = 0.5  # type: ignore[misc]
 
 
-# ---------------------------------------------------------------------------------------------------------------
+# ------------------------------------------------------------------------------------------------------------
 # The assignment behind CEAF-e: the pure-Python Hungarian method against exhaustive search and scipy.
 
 
 def brute_force_best(weights: list[list[float]]) -> float:
     rows, cols = len(weights), len(weights[0])
     if rows <= cols:
-        return max(sum(weights[i][p[i]] for i in range(rows)) for p in itertools.permutations(range(cols), rows))
+        return max(
+            sum(weights[i][p[i]] for i in range(rows)) for p in itertools.permutations(range(cols), rows)
+        )
     return max(sum(weights[p[j]][j] for j in range(cols)) for p in itertools.permutations(range(rows), cols))
 
 
@@ -210,7 +217,7 @@ def test_ceaf_e_gives_the_same_score_without_scipy(monkeypatch):
         assert b == pytest.approx(a, abs=1e-12)
 
 
-# ---------------------------------------------------------------------------------------------------------------
+# ------------------------------------------------------------------------------------------------------------
 # Cross-check with the scorch package (a reference scorer from the package index, scorch.scores.muc, b_cubed,
 # ceaf_e, each returning (R, P, F)) on random partitions with twinless mentions and singletons, fixed seed.
 
@@ -232,6 +239,7 @@ def random_partitions(rng: random.Random) -> tuple[list[set[int]], list[set[int]
     return partition(), partition()
 
 
+@pytest.mark.filterwarnings("ignore:divide by zero:RuntimeWarning")
 def test_all_three_metrics_agree_with_scorch_on_random_partitions():
     scores = pytest.importorskip("scorch.scores")
     rng = random.Random(1995)
@@ -242,7 +250,7 @@ def test_all_three_metrics_agree_with_scorch_on_random_partitions():
             try:
                 expected = theirs([set(c) for c in key], [set(c) for c in response])
             except statistics.StatisticsError:
-                # scorch's CEAF takes the harmonic mean of -0.0 when no chains overlap and fails; the score is 0
+                # scorch's CEAF fails on the harmonic mean of -0.0 when no chains overlap; the score is 0
                 assert ours is ceaf_e and not set().union(*key) & set().union(*response)
                 expected = (0.0, 0.0, 0.0)
             assert (got.recall, got.precision, got.f1) == pytest.approx(tuple(expected), abs=1e-9), (

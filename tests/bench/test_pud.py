@@ -10,15 +10,37 @@ from gendertrace.errors import InputError
 
 # Tiny invented sentences; each row is "ID FORM UPOS FEATS HEAD DEPREL".
 EN = [
-    Sent("a1", "Rain fell.", "1 Rain NOUN Number=Sing 2 nsubj\n2 fell VERB _ 0 root\n3 . PUNCT _ 2 punct", "doc-a"),
-    Sent("b1", "Snow fell.", "1 Snow NOUN Number=Sing 2 nsubj\n2 fell VERB _ 0 root\n3 . PUNCT _ 2 punct", "doc-b"),
+    Sent(
+        "a1",
+        "Rain fell.",
+        "1 Rain NOUN Number=Sing 2 nsubj\n2 fell VERB _ 0 root\n3 . PUNCT _ 2 punct",
+        "doc-a",
+    ),
+    Sent(
+        "b1",
+        "Snow fell.",
+        "1 Snow NOUN Number=Sing 2 nsubj\n2 fell VERB _ 0 root\n3 . PUNCT _ 2 punct",
+        "doc-b",
+    ),
     Sent("a2", "Wind blew.", "1 Wind NOUN Number=Sing 2 nsubj\n2 blew VERB _ 0 root\n3 . PUNCT _ 2 punct"),
 ]
 ES = [
     # deliberately in another order than the English file: pairs are matched by sent_id
-    Sent("a2", "Sopló viento.", "1 Sopló VERB _ 0 root\n2 viento NOUN Gender=Masc|Number=Sing 1 nsubj\n3 . PUNCT _ 1 punct"),
-    Sent("a1", "Cayó lluvia.", "1 Cayó VERB _ 0 root\n2 lluvia NOUN Gender=Fem|Number=Sing 1 nsubj\n3 . PUNCT _ 1 punct"),
-    Sent("b1", "Cayó nieve.", "1 Cayó VERB _ 0 root\n2 nieve NOUN Gender=Fem|Number=Sing 1 nsubj\n3 . PUNCT _ 1 punct"),
+    Sent(
+        "a2",
+        "Sopló viento.",
+        "1 Sopló VERB _ 0 root\n2 viento NOUN Gender=Masc|Number=Sing 1 nsubj\n3 . PUNCT _ 1 punct",
+    ),
+    Sent(
+        "a1",
+        "Cayó lluvia.",
+        "1 Cayó VERB _ 0 root\n2 lluvia NOUN Gender=Fem|Number=Sing 1 nsubj\n3 . PUNCT _ 1 punct",
+    ),
+    Sent(
+        "b1",
+        "Cayó nieve.",
+        "1 Cayó VERB _ 0 root\n2 nieve NOUN Gender=Fem|Number=Sing 1 nsubj\n3 . PUNCT _ 1 punct",
+    ),
 ]
 
 

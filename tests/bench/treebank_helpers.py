@@ -9,7 +9,7 @@ from pathlib import Path
 
 @dataclass(frozen=True)
 class Sent:
-    """One invented sentence: rows are "ID FORM UPOS FEATS HEAD DEPREL" (or "A-B FORM" for a multiword token)."""
+    """Invented sentence; rows: "ID FORM UPOS FEATS HEAD DEPREL", or "A-B FORM" for a multiword token."""
 
     sent_id: str
     text: str
