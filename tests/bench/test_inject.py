@@ -595,6 +595,24 @@ def test_a_zero_subject_adjective_is_evidence_through_the_english_pronoun(treeba
     assert copy.evidenced and "'cansada'" in copy.evidence_note
 
 
+def test_a_source_pronoun_without_an_english_person_pronoun_beside_it_is_no_evidence(treebanks):
+    # "Elle" stands for a shop here: the aligned English says "it", so it anchors nothing
+    shop = (
+        (
+            "Elle a fermé.",
+            f"1 Elle PRON {STRONG_F} 3 nsubj\n2 a AUX _ 3 aux\n3 fermé VERB {PART_M} 0 root\n"
+            "4 . PUNCT _ 3 punct",
+        ),
+        ("It closed.", f"1 It PRON {IT} 2 nsubj\n2 closed VERB _ 0 root\n3 . PUNCT _ 2 punct"),
+    )
+    smiled = (
+        ("Merci.", "1 Merci INTJ _ 0 root\n2 . PUNCT _ 1 punct"),
+        ("She smiled.", f"1 She PRON {SHE} 2 nsubj\n2 smiled VERB _ 0 root\n3 . PUNCT _ 2 punct"),
+    )
+    copy = only(inject_document(make_doc(treebanks, "fr", "en", [shop, smiled]), "en", EN))
+    assert not copy.evidenced
+
+
 def test_a_passive_participle_is_evidence_but_a_compound_tense_participle_is_not(treebanks):
     he_operated = (
         "He was operated on.",

@@ -95,8 +95,14 @@ _GENDERED = ("masc", "fem")
 # English pronoun forms and their gender; the counterparts are chosen in _english_flip (the rules files list
 # pronoun forms but not their other-gender counterparts).
 _EN_PRONOUNS = {
-    "he": "masc", "him": "masc", "his": "masc", "himself": "masc",
-    "she": "fem", "her": "fem", "hers": "fem", "herself": "fem",
+    "he": "masc",
+    "him": "masc",
+    "his": "masc",
+    "himself": "masc",
+    "she": "fem",
+    "her": "fem",
+    "hers": "fem",
+    "herself": "fem",
 }
 _EN_REFLEXIVE = {"himself": "herself", "herself": "himself"}
 _ES_PRONOUNS = {"él": ("masc", "ella"), "ella": ("fem", "él")}
@@ -225,10 +231,6 @@ def _is_elided(tok: Token, lang: str) -> bool:
     return lang == "fr" and tok.text.endswith(_APOSTROPHES)
 
 
-def _children(parsed: ParsedText, i: int) -> list[Token]:
-    return parsed.children(i)
-
-
 def _word_at(text: str, tok: Token) -> bool:
     return text[tok.start : tok.end] == tok.text
 
@@ -271,7 +273,7 @@ def _person_noun_gender(parsed: ParsedText, tok: Token, rules: Any) -> tuple[str
         return None
     deps = [
         c
-        for c in _children(parsed, tok.i)
+        for c in parsed.children(tok.i)
         if c.deprel in ("det", "amod") and c.gender in _GENDERED and not _is_elided(c, parsed.lang)
     ]
     genders = {c.gender for c in deps}
@@ -290,7 +292,7 @@ def _is_person_noun(tok: Token, rules: Any) -> bool:
 
 def _agrees_with_subject(parsed: ParsedText, tok: Token, rules: Any) -> bool:
     agreeing = getattr(rules, "agreeing_aux", None) or frozenset()
-    for c in _children(parsed, tok.i):
+    for c in parsed.children(tok.i):
         if c.deprel in ("cop", "aux:pass"):
             return True
         if c.deprel == "aux" and c.lemma.lower() in agreeing:
@@ -299,7 +301,11 @@ def _agrees_with_subject(parsed: ParsedText, tok: Token, rules: Any) -> bool:
 
 
 def person_words(
-    parsed: ParsedText, rules: Any, anchors: frozenset[str] | None, side: str = "target", sentence: int = 0,
+    parsed: ParsedText,
+    rules: Any,
+    anchors: frozenset[str] | None,
+    side: str = "target",
+    sentence: int = 0,
     sent_id: str = "",
 ) -> list[PersonWord]:
     """The person words of one sentence side (module docstring, items 1 to 5), in text order.
@@ -344,7 +350,7 @@ def person_words(
             continue
         if not _agrees_with_subject(parsed, tok, rules):
             continue
-        kids = _children(parsed, tok.i)
+        kids = parsed.children(tok.i)
         if any(c.feat("Person") in ("1", "2") for c in kids if c.deprel in ("cop", "aux", "aux:pass")):
             continue
         subjects = [c for c in kids if c.deprel in ("nsubj", "nsubj:pass")]
@@ -417,7 +423,7 @@ def _french_flip(parsed: ParsedText, tok: Token) -> str | None:
         return None
     prefix, bare = m.group(1) or "", m.group(2)
     subject = tok.deprel in ("nsubj", "nsubj:pass")
-    after_preposition = any(c.deprel == "case" for c in _children(parsed, tok.i))
+    after_preposition = any(c.deprel == "case" for c in parsed.children(tok.i))
     before = parsed.tokens[tok.i - 1].text.lower() if tok.i > 0 else ""
     new = None
     # the word before must keep its form: s'il / si elle, d'elle / de lui, qu'elle / que lui would change it
@@ -453,7 +459,7 @@ def _det_noun_site(
     if not entry or entry[0] not in ("common", noun.gender):
         return None
     common, counterpart = entry[0] == "common", entry[1]
-    kids = _children(parsed, noun.i)
+    kids = parsed.children(noun.i)
     # an elided French l' shows no gender, whatever its gold features say
     dets = [c for c in kids if c.deprel == "det" and (c.gender in _GENDERED or _is_elided(c, lang))]
     if len(dets) != 1 or dets[0].upos != "DET" or dets[0].i > noun.i:
@@ -542,9 +548,7 @@ def _describe(word: PersonWord) -> str:
     return f"{word.side} {word.sent_id}: {word.text!r} ({word.kind}, {word.gender})"
 
 
-def _evidence(
-    site: _Site, words: list[tuple[list[PersonWord], list[PersonWord]]]
-) -> tuple[bool, str]:
+def _evidence(site: _Site, words: list[tuple[list[PersonWord], list[PersonWord]]]) -> tuple[bool, str]:
     gender, other = site.original_gender, _OTHER[site.original_gender]
     flipped = set(site.tokens)
     order = [("source", site.sentence), ("target", site.sentence)]
