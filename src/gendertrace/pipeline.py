@@ -143,7 +143,7 @@ class Scorer:
         entities, _ = build_entities(src_res, tgt_res, tgt_mentions, links)
         findings, stats = detect_findings(
             entities, links, [s.target for s in doc.segments], seg_ids, tgt_res.certainty,
-            self.settings.min_confidence,
+            self.settings.min_confidence, tgt_res.chain_of,
         )
         return DocumentResult(doc.doc_id, self.src_lang, self.tgt_lang, tuple(entities), tuple(findings), stats,
                               tuple(src_res.chains) + tuple(tgt_res.chains))

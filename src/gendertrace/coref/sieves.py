@@ -15,9 +15,9 @@ from dataclasses import dataclass, field
 from gendertrace.model import Chain, Mention, ParsedText, Side
 
 # How far back (in segments) a pronoun or zero subject looks for its antecedent.
-PRONOUN_WINDOW = 2
-# Certainty of a pronoun's attachment by distance in segments (same, previous, two back).
-DISTANCE_CERTAINTY = (1.0, 0.9, 0.7)
+PRONOUN_WINDOW = 3
+# Certainty of a pronoun's attachment by distance in segments (same, previous, two back, three back).
+DISTANCE_CERTAINTY = (1.0, 0.9, 0.8, 0.7)
 
 
 @dataclass
@@ -111,8 +111,16 @@ def resolve_chains(
         tok = parses[m.seg].tokens[m.head]
         if tok.deprel in ("appos", "compound", "flat", "flat:name", "nmod:appos") and not tok.is_root:
             other = by_seg_head.get((m.seg, tok.head))
+            if other is None and tok.deprel == "appos":
+                other = _appos_through_modifier(parses[m.seg], tok.head, m.seg, by_seg_head)
             if other is not None and other.kind in ("name", "noun") and other is not m:
                 try_union(other, m)
+        # "was elected president", "named her director": a person noun predicated of the clause's subject.
+        if m.kind == "noun" and tok.deprel in ("xcomp", "attr") and not tok.is_root:
+            for k in parses[m.seg].children(tok.head):
+                subj = by_seg_head.get((m.seg, k.i))
+                if k.deprel in ("nsubj", "nsubj:pass") and subj is not None and subj.kind in ("name", "noun"):
+                    try_union(subj, m)
         # "A es ministra" (UD: copular predicate nominal) and "A is the minister" (ClearNLP: attr of be).
         if tok.deprel in ("nsubj",):
             head = parses[m.seg].tokens[tok.head]
@@ -186,6 +194,22 @@ def resolve_chains(
     return Resolution(chains, chain_of, certainty, antecedent)
 
 
+def _appos_through_modifier(parsed: ParsedText, head: int, seg: int, by_seg_head: dict) -> Mention | None:
+    """An appositive attached to the last noun of a modifier ("the doctor on call, Ana Ruiz"): the person noun
+    that the modifier belongs to."""
+    t = parsed.tokens[head]
+    for _ in range(3):
+        if t.is_root:
+            return None
+        t = parsed.tokens[t.head]
+        found = by_seg_head.get((seg, t.i))
+        if found is not None and found.kind == "noun":
+            return found
+        if t.upos in ("VERB", "AUX"):
+            return None
+    return None
+
+
 def _nonfinite_under(parsed: ParsedText, clause: int) -> int:
     """For a non-finite clause head (infinitive or participle complement), the clause it depends on; else -1."""
     if clause < 0:
@@ -205,7 +229,7 @@ def _unique_container(words: set[str], names: Sequence[Mention], cl: _Clusters) 
 
 def _salience(cand: Mention, m: Mention) -> float:
     distance = m.seg - cand.seg
-    score = -1.0 * distance
+    score = -0.8 * distance
     if cand.role in ("nsubj", "nsubj:pass"):
         score += 0.6
     if cand.kind in ("name", "noun"):
@@ -243,6 +267,11 @@ def _pick_antecedent(m, ms, cl, parses, use_gender):
         if not _compatible(cl.members(c.id), [m], use_gender):
             continue
         s = _salience(c, m)
+        members = cl.members(c.id)
+        # Entities mentioned often stay salient; on the source side a matching known gender is preferred.
+        s += min(0.1 * (len(members) - 1), 0.4)
+        if use_gender and m.gender and m.gender in _genders(members):
+            s += 0.5
         root = cl.find(c.id)
         if root not in scored or s > scored[root][0]:
             scored[root] = (s, c)

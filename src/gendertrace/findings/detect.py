@@ -1,14 +1,15 @@
 """Findings: target words that give a person a gender the document's evidence does not support.
 
-contradiction: the entity's source evidence settles its gender and the target word says otherwise.
-inconsistency: no usable source evidence, and the target gives the entity two genders (the minority is flagged).
+contradiction: the document's evidence, led by the source, settles the entity's gender and the target word
+  says otherwise.
+inconsistency: the source does not settle it, and the target gives the entity two genders.
 assumption: nothing in the source speaks to the person's gender and the target commits to one (informational).
 """
 
 from __future__ import annotations
 
 from collections.abc import Sequence
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 from gendertrace.evidence.resolve import resolve_gender
 from gendertrace.model import DocumentStats, Entity, EvidenceItem, Finding, Link, Mention
@@ -49,6 +50,16 @@ def target_references(m: Mention, target_text: str) -> list[Reference]:
     return refs
 
 
+# The target's own words count for less than the source's when they are evidence about another target word.
+TARGET_FACTOR = 0.6
+
+
+def _pooled_verdict(source: Sequence[EvidenceItem], others: Sequence[EvidenceItem]):
+    """Verdict on the source evidence plus the other target words (down-weighted), source first in ties."""
+    pool = list(source) + [replace(mk, weight=mk.weight * TARGET_FACTOR, side="source") for mk in others]
+    return resolve_gender(pool)
+
+
 def detect_findings(
     entities: Sequence[Entity],
     links: dict[str, Link],
@@ -56,9 +67,25 @@ def detect_findings(
     seg_ids: Sequence[str],
     certainty: dict[str, float],
     min_confidence: float = 0.5,
+    target_chain_of: dict[str, str] | None = None,
 ) -> tuple[list[Finding], DocumentStats]:
+    """Check every gendered target reference of every entity against the rest of the document's evidence.
+
+    Each reference is judged leave-one-out: against the source evidence when that alone is confident, else
+    against the source evidence pooled with the entity's other target references. A disagreement is a
+    contradiction when the source leans the same way as the verdict, an inconsistency when only the target
+    speaks. An entity whose source is silent and whose target commits to one gender gets one assumption.
+    """
     findings: list[Finding] = []
     total_refs = checked = consistent = 0
+    # The target's own chains, where each attachment was certain, pool evidence across entities: a target
+    # pronoun tied by alignment to one source mention is still about the person its sentence calls "she".
+    chain_refs: dict[str, list[Reference]] = {}
+    if target_chain_of:
+        for e in entities:
+            for m in e.target_mentions:
+                if certainty.get(m.id, 1.0) >= 1.0:
+                    chain_refs.setdefault(target_chain_of[m.id], []).extend(target_references(m, target_texts[m.seg]))
     for e in entities:
         refs: dict[tuple[int, int, int], Reference] = {}
         for m in e.target_mentions:
@@ -73,43 +100,41 @@ def detect_findings(
         source_verdict = resolve_gender(source_ev) if source_ev else None
 
         def reach(r: Reference) -> float:
+            # A direct link says how surely the word is about this person; the target chain matters only
+            # where the link was inherited through it (and its certainty is already in the link's confidence).
             link = links.get(r.mention.id)
-            return (link.confidence if link else 1.0) * certainty.get(r.mention.id, 1.0)
+            return link.confidence if link else certainty.get(r.mention.id, 1.0)
 
-        if source_verdict and source_verdict.confidence * 1.0 >= min_confidence:
-            for r in ordered:
-                conf = source_verdict.confidence * reach(r)
-                if conf < min_confidence:
+        judged = 0
+        for r in ordered:
+            if source_verdict and source_verdict.confidence >= min_confidence:
+                verdict, kind, support = source_verdict, "contradiction", source_ev
+            else:
+                pool = {(o.seg, o.start, o.end): o for o in ordered}
+                if target_chain_of and certainty.get(r.mention.id, 1.0) >= 1.0:
+                    for o in chain_refs.get(target_chain_of[r.mention.id], []):
+                        pool.setdefault((o.seg, o.start, o.end), o)
+                others = [mk for key, o in pool.items() if key != (r.seg, r.start, r.end) for mk in o.marks]
+                if not others and not source_ev:
                     continue
-                checked += 1
-                if r.gender == source_verdict.gender:
-                    consistent += 1
-                    continue
-                findings.append(_finding("contradiction", r, source_verdict.gender, e, conf, source_ev, seg_ids))
-            continue
-        genders = {r.gender for r in ordered}
-        if len(genders) > 1:
-            weights: dict[str, float] = {}
-            for r in ordered:
-                weights[r.gender] = weights.get(r.gender, 0.0) + max(mk.weight for mk in r.marks)
-            majority = max(weights, key=lambda g: (weights[g], -_first_index(ordered, g)))
-            margin = (weights[majority] - sum(w for g, w in weights.items() if g != majority)) / sum(weights.values())
-            for r in ordered:
-                conf = (0.5 + 0.5 * margin) * reach(r)
-                if conf < min_confidence:
-                    continue
-                checked += 1
-                if r.gender == majority:
-                    consistent += 1
-                    continue
-                support = tuple(mk for o in ordered if o.gender == majority for mk in o.marks)
-                findings.append(_finding("inconsistency", r, None, e, conf, support, seg_ids))
-            continue
-        if not source_ev:
+                verdict = _pooled_verdict(source_ev, others)
+                leaning = source_verdict.gender if source_verdict else None
+                kind = "contradiction" if leaning == verdict.gender else "inconsistency"
+                support = [x for x in source_ev if x.gender == verdict.gender] + [
+                    mk for mk in others if mk.gender == verdict.gender]
+            conf = verdict.confidence * reach(r)
+            if verdict.gender not in ("fem", "masc") or conf < min_confidence:
+                continue
+            checked += 1
+            judged += 1
+            if r.gender == verdict.gender:
+                consistent += 1
+                continue
+            expected = verdict.gender if kind == "contradiction" else None
+            findings.append(_finding(kind, r, expected, e, conf, support, seg_ids))
+        if not source_ev and judged == 0:
             r = ordered[0]
-            findings.append(
-                _finding("assumption", r, None, e, 0.5 * reach(r), (), seg_ids)
-            )
+            findings.append(_finding("assumption", r, None, e, 0.5 * reach(r), (), seg_ids))
     findings.sort(key=lambda f: (f.seg, f.start))
     counts = {k: sum(1 for f in findings if f.kind == k) for k in ("contradiction", "inconsistency", "assumption")}
     stats = DocumentStats(

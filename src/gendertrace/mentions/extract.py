@@ -281,7 +281,8 @@ def _span_head(parsed: ParsedText, ids: list[int]) -> int:
 
 
 def _role_and_clause(parsed: ParsedText, i: int) -> tuple[str, int]:
-    """The mention's relation in its clause and the clause head (climbing name-internal and appositive links)."""
+    """The mention's relation in its clause and the clause head (climbing name-internal and appositive links,
+    and through the preposition of an English prepositional object, which ClearNLP attaches to the preposition)."""
     t = parsed.tokens[i]
     seen = 0
     while t.deprel in NAME_LINK_RELS and not t.is_root and seen < 4:
@@ -290,6 +291,10 @@ def _role_and_clause(parsed: ParsedText, i: int) -> tuple[str, int]:
             break
         t = h
         seen += 1
+    if t.deprel in ("pobj", "agent") and not t.is_root:
+        prep = parsed.tokens[t.head]
+        if prep.deprel in ("prep", "agent", "dative") and not prep.is_root:
+            return ("obl", prep.head)
     return t.deprel, (t.i if t.is_root else t.head)
 
 
@@ -366,9 +371,9 @@ def _predicate_marks(parsed, i, role, clause, rules, side, seg, seg_id, zero: bo
     if has_cop and pred.upos in ("ADJ", "NOUN", "VERB"):
         add(pred, "predicative with copula")
     elif pred.upos in ("VERB", "ADJ") and pred.feat("VerbForm") == "Part":
-        if aux_lemmas & rules.invariable_aux and not has_pass:
-            pass  # compound tense: invariable participle, no evidence about the subject
-        elif has_pass or aux_lemmas & rules.agreeing_aux:
+        # An agreeing auxiliary makes the participle agree even under a compound tense ("ha sido elegida",
+        # "a été élue"); with only the compound-tense auxiliary it is invariable ("ha operado", "a opéré").
+        if has_pass or aux_lemmas & rules.agreeing_aux:
             add(pred, "participle with agreeing auxiliary")
     # Secondary predicates ("quedó sorprendida", "se mostró convencida").
     if pred.lemma.lower() in rules.copulas:
