@@ -115,6 +115,11 @@ def resolve_chains(
                 other = _appos_through_modifier(parses[m.seg], tok.head, m.seg, by_seg_head)
             if other is not None and other.kind in ("name", "noun") and other is not m:
                 try_union(other, m)
+        # A role noun right before a name is its title: "la ingeniera Carmen Ibarluce", "Captain Moira Tennick".
+        if m.kind == "noun":
+            nxt = by_seg_head.get((m.seg, m.tokens[-1] + 1))
+            if nxt is not None and nxt.kind == "name":
+                try_union(m, nxt)
         # "was elected president", "named her director": a person noun predicated of the clause's subject.
         if m.kind == "noun" and tok.deprel in ("xcomp", "attr") and not tok.is_root:
             for k in parses[m.seg].children(tok.head):
@@ -243,7 +248,10 @@ def _pick_antecedent(m, ms, cl, parses, use_gender):
     """The best preceding candidate for a pronoun or zero subject, and the compatible alternatives near it."""
     scored: dict[str, tuple[float, Mention]] = {}
     for c in ms:
-        if _order(c) >= _order(m) or m.seg - c.seg > PRONOUN_WINDOW:
+        # A possessive may point forward to the subject of its own clause ("Por su parte, la ingeniera...").
+        cataphoric = (m.pron_type == "possessive" and c.seg == m.seg and c.clause == m.clause
+                      and c.role in ("nsubj", "nsubj:pass") and c.kind in ("name", "noun"))
+        if (_order(c) >= _order(m) and not cataphoric) or m.seg - c.seg > PRONOUN_WINDOW:
             continue
         if c.kind == "pronoun" and c.pron_type == "possessive" and c.seg == m.seg:
             continue
@@ -267,6 +275,8 @@ def _pick_antecedent(m, ms, cl, parses, use_gender):
         if not _compatible(cl.members(c.id), [m], use_gender):
             continue
         s = _salience(c, m)
+        if m.pron_type == "possessive" and c.seg == m.seg and c.clause == m.clause and c.role in ("nsubj", "nsubj:pass"):
+            s += 0.4  # possessives lean to the subject of their own clause
         members = cl.members(c.id)
         # Entities mentioned often stay salient; on the source side a matching known gender is preferred.
         s += min(0.1 * (len(members) - 1), 0.4)

@@ -92,7 +92,8 @@ def detect_findings(
             for r in target_references(m, target_texts[m.seg]):
                 refs.setdefault((r.seg, r.start, r.end), r)
         ordered = sorted(refs.values(), key=lambda r: (r.seg, r.start))
-        ordered = [r for r in ordered if r.gender in ("fem", "masc") and _checkable(r.mention, links, e)]
+        ordered = [r for r in ordered if r.gender in ("fem", "masc") and _checkable(r.mention, links, e)
+                   and not _unmarked_only(r)]
         total_refs += len(ordered)
         if not ordered:
             continue
@@ -142,6 +143,11 @@ def detect_findings(
         consistent=consistent, findings=counts,
     )
     return findings, stats
+
+
+def _unmarked_only(r: Reference) -> bool:
+    """A bare masculine role noun ("presidente") is also the generic form: evidence, but never flagged alone."""
+    return all(mk.rule == "masculine noun form" for mk in r.marks)
 
 
 def _checkable(m: Mention, links: dict[str, Link], e: Entity) -> bool:

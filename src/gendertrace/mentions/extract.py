@@ -149,11 +149,14 @@ def extract_mentions(
         )
         used.update(ids)
 
+    # Person nouns the tagger took for something else ("la ingeniera" as a verb) still count after an article.
+    noun_like = {t.i for t in toks if rules.is_person_noun(t.text) and not _is_plural(t) and (
+        t.upos in ("NOUN", "PROPN") or (t.i > 0 and rules.article_gender(toks[t.i - 1].text) is not None))}
     for t in toks:
         if t.i in used:
             continue
         # Role and kinship nouns.
-        if t.upos in ("NOUN", "PROPN") and rules.is_person_noun(t.text) and not _is_plural(t):
+        if t.i in noun_like:
             gender, counterpart = rules.noun_counterpart(t.text)
             marks = []
             if gender == "fem" or (gender == "masc" and not rules.articles):
@@ -163,6 +166,12 @@ def extract_mentions(
                 marks.append(_mark(side, seg, seg_id, t, gender, "lexical", W_UNMARKED_NOUN, "masculine noun form"))
             marks += _honorifics_before(parsed, t.i, [t.i], rules, side, seg, seg_id)
             marks += _np_marks(parsed, t.i, rules, side, seg, seg_id, noun_form=True)
+            if not any(mk.rule == "determiner agreement" for mk in marks) and t.i > 0:
+                before = toks[t.i - 1]
+                g = rules.article_gender(before.text)
+                if g in ("fem", "masc"):
+                    marks.append(_mark(side, seg, seg_id, before, g, "morphology", W_DETERMINER,
+                                       "determiner agreement"))
             role, clause = _role_and_clause(parsed, t.i)
             marks += _predicate_marks(parsed, t.i, role, clause, rules, side, seg, seg_id, zero=False)
             masc_key = counterpart if gender == "fem" else t.text.lower()
@@ -174,7 +183,9 @@ def extract_mentions(
                 )
             )
             continue
-        # Pronouns.
+        # Pronouns (not an article the tagger misread before a person noun).
+        if t.i + 1 in noun_like and rules.article_gender(t.text) is not None:
+            continue
         if t.upos in ("PRON", "DET") and rules.pronoun(t.text):
             form = _pick_pronoun_form(t, rules)
             if form is None or form.number == "plur":
@@ -188,6 +199,8 @@ def extract_mentions(
                 weight = W_PRONOUN if form.animate else W_CLITIC
                 marks.append(_mark(side, seg, seg_id, t, form.gender, "pronoun", weight, f"{form.type} pronoun"))
             role, clause = _role_and_clause(parsed, t.i)
+            if form.type == "possessive":
+                clause = _governing_clause(parsed, t.i)
             if form.type == "personal":
                 marks += _predicate_marks(parsed, t.i, role, clause, rules, side, seg, seg_id, zero=False)
             out.append(
@@ -296,6 +309,19 @@ def _role_and_clause(parsed: ParsedText, i: int) -> tuple[str, int]:
         if prep.deprel in ("prep", "agent", "dative") and not prep.is_root:
             return ("obl", prep.head)
     return t.deprel, (t.i if t.is_root else t.head)
+
+
+def _governing_clause(parsed: ParsedText, i: int) -> int:
+    """The nearest ancestor that heads a clause (a verb, or a word with a subject or copula below it)."""
+    t = parsed.tokens[i]
+    for _ in range(6):
+        if t.is_root:
+            return t.i
+        t = parsed.tokens[t.head]
+        kids = parsed.children(t.i)
+        if t.upos in ("VERB", "AUX") or any(k.deprel in ("nsubj", "nsubj:pass", "cop") for k in kids):
+            return t.i
+    return t.i
 
 
 def _honorifics_before(parsed, head, ids, rules, side, seg, seg_id) -> list[EvidenceItem]:
