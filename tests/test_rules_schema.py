@@ -19,7 +19,6 @@ from gendertrace.rules import load_lexicon, load_rules, rules_digest, rules_dir
 RULES = rules_dir()
 LANGS = sorted(p.stem for p in RULES.glob("*.yaml"))
 LEXICONS = sorted((RULES / "lexicon").glob("*.yaml"))
-_SPANISH_GAP = {"en-es", "es-fr"}  # lexicons with Spanish forms missing from es.yaml (see the xfail below)
 
 # A small valid rules document, the base of every schema test (an invented language code, "qx").
 MINIMAL = {
@@ -97,14 +96,7 @@ def test_a_pair_without_a_lexicon_gives_an_empty_one(tmp_path):
     assert load_lexicon("qx", "qy", str(tmp_path)) == {}
 
 
-_SPANISH_GAP_XFAIL = pytest.mark.xfail(
-    strict=True, reason="es 'policía' and 'guardia' are lexicon forms but not Spanish person nouns, so they "
-                        "never become mentions and their entries never link")
-
-
-@pytest.mark.parametrize("path", [
-    pytest.param(p, id=p.stem, marks=[_SPANISH_GAP_XFAIL] if p.stem in _SPANISH_GAP else []) for p in LEXICONS
-])
+@pytest.mark.parametrize("path", [pytest.param(p, id=p.stem) for p in LEXICONS])
 def test_single_word_lexicon_forms_are_person_nouns_of_their_language(path):
     data = yaml.safe_load(path.read_text(encoding="utf-8"))
     src, tgt = load_rules(data["source"]), load_rules(data["target"])
@@ -195,8 +187,6 @@ def test_a_bad_pronoun_number_is_rejected(tmp_path):
     assert _rejected(tmp_path, data).key == "pronouns[0].number"
 
 
-@pytest.mark.xfail(strict=True, reason="the schema does not check a pronoun's case (nom, acc, dat), so a "
-                                       "typo silently breaks pronoun pairing")
 def test_a_bad_pronoun_case_is_rejected(tmp_path):
     data = copy.deepcopy(MINIMAL)
     data["pronouns"][0]["case"] = "nominative"

@@ -180,8 +180,6 @@ def test_french_participle_after_etre_in_a_compound_tense_is_evidence(mentions):
     assert ("arrivée", "fem") in _marks(_mention(ms, "Elle"))
 
 
-@pytest.mark.xfail(strict=True, reason="the French pipeline tags 'élue' Gender=Masc and the tool takes "
-                                       "the tag as masculine agreement evidence")
 def test_french_passive_elue_is_feminine_evidence(mentions):
     _, ms = mentions("fr", "Elle a été élue en mars.")
     # French grammar: "élue" is the feminine singular participle of élire (from memory).
@@ -451,16 +449,12 @@ def test_french_impersonal_il_is_not_a_person_mention(mentions, text):
     assert all(m.text.lower() != "il" for m in ms)
 
 
-@pytest.mark.xfail(strict=True, reason="'arriver' is listed as an expletive verb and the pipeline labels "
-                                       "this 'Il' expl:subj, so a personal subject pronoun is dropped")
 def test_french_personal_il_with_arriver_is_a_person_mention(mentions):
     _, ms = mentions("fr", "Il est arrivé hier.")
     # French grammar: "il est arrivé hier" is "he arrived yesterday" (from memory).
     assert _marks(_mention(ms, "Il"))[0] == ("Il", "masc")
 
 
-@pytest.mark.xfail(strict=True, reason="the target 'Il' of 'il est arrivé' is dropped as an expletive, so "
-                                       "the wrongly gendered sentence goes unflagged")
 def test_french_target_il_est_arrive_about_a_woman_is_flagged(score):
     result = score("en", "fr", [
         ("Amaia Zubelzu landed in Orbeta.", "Amaia Zubelzu a atterri à Orbeta."),
@@ -480,8 +474,6 @@ def test_english_he_or_she_marks_no_gender(mentions, text):
     assert all(m.marks == () for m in pronouns)
 
 
-@pytest.mark.xfail(strict=True, reason="the pipeline labels 'il' of 'il ou elle' expl:subj, so it is "
-                                       "dropped and 'elle' keeps a feminine mark")
 def test_french_il_ou_elle_marks_no_gender(mentions):
     _, ms = mentions("fr", "Chaque étudiant sait qu'il ou elle doit s'inscrire.")
     assert all(m.marks == () for m in ms if m.kind == "pronoun")
@@ -497,9 +489,6 @@ SILENT_SOURCE = [
 ]
 
 
-@pytest.mark.xfail(strict=True, reason="one 'he' and one 'she' for one person weigh the same, so the "
-                                       "inconsistency stays below the default min_confidence 0.5 and is not "
-                                       "reported (an assumption on 'He' is, instead)")
 def test_target_he_then_she_for_one_person_is_an_inconsistency(score):
     result = score("es", "en", SILENT_SOURCE)
     assert "inconsistency" in _kinds(result)

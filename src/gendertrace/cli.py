@@ -147,5 +147,22 @@ def bench(data, report, directions, seed):
     click.echo(text)
 
 
+def _register_optional_commands() -> None:
+    """Commands that live in their own modules (review report, history store)."""
+    import importlib
+
+    for module, name in (("gendertrace.review.cli", "review"), ("gendertrace.history.cli", "history")):
+        try:
+            mod = importlib.import_module(module)
+        except ModuleNotFoundError as exc:
+            if exc.name and exc.name.startswith("gendertrace"):
+                continue  # that part of the tool is not built yet
+            raise
+        main.add_command(getattr(mod, name))
+
+
+_register_optional_commands()
+
+
 if __name__ == "__main__":  # pragma: no cover
     main()

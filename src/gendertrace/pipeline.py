@@ -29,15 +29,24 @@ class ScoreSettings:
     extra: dict = field(default_factory=dict)
 
 
-def pronoun_pairs(src: LanguageRules, tgt: LanguageRules) -> set[tuple[str, str]]:
-    """Gender-blind pronoun correspondences (same type and compatible number): anchors for the aligner."""
-    pairs = set()
+def pronoun_pairs(src: LanguageRules, tgt: LanguageRules) -> dict[tuple[str, str], float]:
+    """Pronoun correspondences for the aligner, scored: same type is required and number must be compatible;
+    equal case and equal gender score higher. Gender only ranks: a wrongly gendered pronoun still pairs."""
+    pairs: dict[tuple[str, str], float] = {}
     for a, fa in src.pronouns.items():
         for b, fb in tgt.pronouns.items():
-            if any(x.type == y.type and (x.number == y.number or None in (x.number, y.number))
-                   and (x.case == y.case or None in (x.case, y.case))
-                   for x in fa for y in fb):
-                pairs.add((a, b))
+            best = None
+            for x in fa:
+                for y in fb:
+                    if x.type != y.type or not (x.number == y.number or None in (x.number, y.number)):
+                        continue
+                    if x.case and y.case and x.case != y.case:
+                        continue
+                    score = 1.0 + (0.5 if x.case and x.case == y.case else 0.0)
+                    score += 1.0 if x.gender and x.gender == y.gender else 0.0
+                    best = score if best is None else max(best, score)
+            if best is not None:
+                pairs[(a, b)] = best
     return pairs
 
 

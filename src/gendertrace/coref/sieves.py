@@ -18,6 +18,10 @@ from gendertrace.model import Chain, Mention, ParsedText, Side
 PRONOUN_WINDOW = 3
 # Certainty of a pronoun's attachment by distance in segments (same, previous, two back, three back).
 DISTANCE_CERTAINTY = (1.0, 0.9, 0.8, 0.7)
+# Certainty when another compatible antecedent was nearly as salient.
+ALTERNATIVE_CERTAINTY = 0.7
+# A competitor within this much salience counts as an alternative (less than the bonus for being a subject).
+ALTERNATIVE_MARGIN = 0.5
 
 
 @dataclass
@@ -184,7 +188,7 @@ def resolve_chains(
             antecedent[m.id] = best.id
             # Another compatible cluster nearly as salient makes the choice uncertain, and so does distance.
             far = min(m.seg - best.seg, len(DISTANCE_CERTAINTY) - 1)
-            certainty[m.id] = (1.0 if not alternatives else 0.5) * DISTANCE_CERTAINTY[far]
+            certainty[m.id] = (1.0 if not alternatives else ALTERNATIVE_CERTAINTY) * DISTANCE_CERTAINTY[far]
 
     groups: dict[str, list[Mention]] = {}
     for m in ms:
@@ -289,7 +293,7 @@ def _pick_antecedent(m, ms, cl, parses, use_gender):
         return None, []
     ranked = sorted(scored.values(), key=lambda x: -x[0])
     best_score, best = ranked[0]
-    alternatives = [c for s, c in ranked[1:] if best_score - s < 0.75]
+    alternatives = [c for s, c in ranked[1:] if best_score - s < ALTERNATIVE_MARGIN]
     if not use_gender and alternatives and m.gender:
         # Gender-blind side: an alternative only matters when its gender would fit the pronoun.
         alternatives = [c for c in alternatives if m.gender in (_genders(cl.members(c.id)) or {m.gender})]

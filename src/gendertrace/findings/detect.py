@@ -51,7 +51,7 @@ def target_references(m: Mention, target_text: str) -> list[Reference]:
 
 
 # The target's own words count for less than the source's when they are evidence about another target word.
-TARGET_FACTOR = 0.6
+TARGET_FACTOR = 0.8
 
 
 def _pooled_verdict(source: Sequence[EvidenceItem], others: Sequence[EvidenceItem]):

@@ -82,15 +82,20 @@ def anchor_alignment(
     src: ParsedText,
     tgt: ParsedText,
     lexicon: dict[str, frozenset[str]],
-    pronoun_pairs: set[tuple[str, str]],
+    pronoun_pairs: dict[tuple[str, str], float],
 ) -> tuple[Alignment, Alignment]:
     """Anchored links as (strong, weak).
 
-    strong: identical words (names, numbers), person nouns via the lexicon, pronoun pairs;
+    strong: identical words (names, numbers), person nouns via the lexicon, and pronouns paired one to one
+    (best-scoring pairs first: same type, case and gender score higher, nearer relative positions break ties);
     weak: each target verb to the source verb at the nearest relative position in the segment.
     """
+    from gendertrace.rules.loader import pronoun_key
+
     links = set()
     s_toks, t_toks = src.tokens, tgt.tokens
+    ns, nt = max(len(s_toks), 1), max(len(t_toks), 1)
+    pron_cands = []
     for s in s_toks:
         sl = s.text.lower()
         for t in t_toks:
@@ -99,14 +104,23 @@ def anchor_alignment(
                 continue
             if (sl == tl and (s.upos in ("PROPN", "NUM") or len(sl) > 3)) or tl in lexicon.get(sl, ()):
                 links.add((s.i, t.i))
-            elif (sl, tl) in pronoun_pairs:
-                links.add((s.i, t.i))
+                continue
+            score = pronoun_pairs.get((pronoun_key(sl), pronoun_key(tl)))
+            if score is not None:
+                pron_cands.append((-score, abs(s.i / ns - t.i / nt), s.i, t.i))
+    used_s, used_t = set(), set()
+    for _, _, i, j in sorted(pron_cands):
+        if i not in used_s and j not in used_t:
+            links.add((i, j))
+            used_s.add(i)
+            used_t.add(j)
     # Verbs by relative position: a weak fallback used only where no other link covers the verb.
     weak = set()
     s_verbs = [s for s in s_toks if s.upos in ("VERB", "AUX")]
     t_verbs = [t for t in t_toks if t.upos in ("VERB", "AUX")]
-    if s_verbs and t_verbs:
-        ns, nt = max(len(s_toks), 1), max(len(t_toks), 1)
+    if len(s_verbs) == 1 and len(t_verbs) == 1:
+        weak.add((s_verbs[0].i, t_verbs[0].i))  # one verb on each side: they translate each other
+    elif s_verbs and t_verbs:
         for t in t_verbs:
             best = min(s_verbs, key=lambda s: abs(s.i / ns - t.i / nt))
             if abs(best.i / ns - t.i / nt) < 0.2:

@@ -9,6 +9,7 @@ from __future__ import annotations
 
 from collections import Counter
 from collections.abc import Sequence
+from dataclasses import replace
 
 from gendertrace.coref.sieves import Resolution
 from gendertrace.link.align import Alignment
@@ -17,7 +18,7 @@ from gendertrace.model import Link, Mention, ParsedText
 CONF_NAME = 1.0
 CONF_LEXICON = 0.95
 CONF_ALIGNED = 0.85
-CONF_PROJECTED = 0.8
+CONF_PROJECTED = 0.85
 CONF_CHAIN = 0.8
 SUBJECTS = ("nsubj", "nsubj:pass")
 CLAUSE_FUNCTION_RELS = ("cop", "aux", "aux:pass", "aux:tense")
@@ -77,7 +78,9 @@ def link_mentions(
         if link is None and (m.role in SUBJECTS or m.kind == "zero") and m.pron_type != "possessive":
             link = _projected(m, tgt_parses[m.seg], src_parses[m.seg], aligned_sources, subject_of, chain)
         if link is not None:
-            links[m.id] = link
+            # A link through a source pronoun is only as sure as that pronoun's place in its chain.
+            sure = src_res.certainty.get(link.via, 1.0)
+            links[m.id] = replace(link, confidence=link.confidence * sure) if sure < 1.0 else link
 
     # Inheritance through the target chain, for mentions no direct method reached.
     members: dict[str, list[Mention]] = {}

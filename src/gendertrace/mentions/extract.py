@@ -13,6 +13,7 @@ from dataclasses import replace
 
 from gendertrace.model import EvidenceItem, Mention, ParsedText, Side, Token
 from gendertrace.rules import LanguageRules
+from gendertrace.rules.loader import pronoun_key
 
 SUBJECT_RELS = {"nsubj", "nsubj:pass"}
 NAME_LINK_RELS = {"flat", "flat:name", "compound", "appos"}
@@ -207,7 +208,7 @@ def extract_mentions(
                 Mention(
                     id=f"{prefix}{t.i}", side=side, seg=seg, head=t.i, tokens=(t.i,), kind="pronoun", text=t.text,
                     start=t.start, end=t.end, number=form.number, person="3", pron_type=form.type, role=role,
-                    clause=clause, key=t.text.lower(), marks=tuple(marks), sent=t.sent, animate=form.animate,
+                    clause=clause, key=pronoun_key(t.text), marks=tuple(marks), sent=t.sent, animate=form.animate,
                     case=form.case,
                 )
             )
@@ -240,21 +241,22 @@ def _quoted_tokens(parsed: ParsedText) -> set[int]:
 
 
 def _is_expletive(parsed: ParsedText, t: Token, rules: LanguageRules) -> bool:
-    """An impersonal subject ("il faut", "il y a", "il est probable que"): refers to no one."""
-    if t.text.lower() not in rules.expletive_pronouns:
-        return False
-    if t.deprel in ("expl", "expl:subj", "expl:impers"):
-        return True
-    if t.is_root:
+    """An impersonal subject ("il faut", "il y a", "il est probable que"): refers to no one.
+
+    Decided from the verb and its complements only: parsers also label personal subjects as expletives.
+    """
+    if pronoun_key(t.text) not in rules.expletive_pronouns or t.is_root:
         return False
     head = parsed.tokens[t.head]
-    if head.lemma.lower() in rules.expletive_verbs:
-        return True
     kids = parsed.children(head.i)
+    clausal = any(k.deprel in ("ccomp", "csubj", "xcomp", "advcl") for k in kids)
+    lemma = head.lemma.lower()
+    if lemma in rules.expletive_verbs or (lemma in rules.expletive_clausal_verbs and clausal):
+        return True
     if any(k.text.lower() in rules.expletive_clitics for k in kids):
         return True
     if rules.expletive_copular_clause and any(k.deprel == "cop" for k in kids) and head.upos == "ADJ":
-        return any(k.deprel in ("ccomp", "csubj", "xcomp", "advcl") for k in kids)
+        return clausal
     return False
 
 
@@ -263,6 +265,11 @@ def _gender_doublet(parsed: ParsedText, t: Token, rules: LanguageRules) -> bool:
     mine = {f.gender for f in rules.pronoun(t.text)}
     partners = [parsed.tokens[t.head]] if t.deprel == "conj" and not t.is_root else []
     partners += [k for k in parsed.children(t.i) if k.deprel == "conj"]
+    # "il ou elle", "he/she": parsers do not always build the coordination, so look at the words around.
+    toks = parsed.tokens
+    for a, b in ((t.i + 1, t.i + 2), (t.i - 1, t.i - 2)):
+        if 0 <= b < len(toks) and (toks[a].upos == "CCONJ" or toks[a].text == "/"):
+            partners.append(toks[b])
     for p in partners:
         theirs = {f.gender for f in rules.pronoun(p.text)}
         if theirs and not (theirs & mine) and None not in theirs:
@@ -382,6 +389,10 @@ def _predicate_marks(parsed, i, role, clause, rules, side, seg, seg_id, zero: bo
 
     def add(tok: Token, rule: str) -> None:
         g = tok.gender
+        if tok.upos in ("ADJ", "VERB") and rules.endings:
+            matched, by_ending = rules.ending_gender(tok.text)
+            if matched:
+                g = by_ending
         if g not in ("fem", "masc") or _is_plural(tok):
             return
         if tok.upos in ("NOUN", "PROPN"):

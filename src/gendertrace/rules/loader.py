@@ -16,6 +16,7 @@ from gendertrace.errors import RulesError
 GENDER_VALUES = {"fem", "masc", "neutral", None}
 NUMBER_VALUES = {"sing", "plur", None}
 PRONOUN_TYPES = {"personal", "possessive", "reflexive"}
+CASE_VALUES = {"nom", "acc", "dat", "gen", None}
 
 
 def rules_dir() -> Path:
@@ -27,6 +28,12 @@ def rules_dir() -> Path:
     if bundled.is_dir():
         return bundled
     return Path(__file__).resolve().parents[3] / "rules"
+
+
+def pronoun_key(text: str) -> str:
+    """Lookup key of a pronoun token: lower case, and French inverted subjects ("-il", "-t-elle") without hyphens."""
+    low = text.lower()
+    return low.rsplit("-", 1)[-1] if low.startswith("-") and len(low) > 1 else low
 
 
 @dataclass(frozen=True)
@@ -57,13 +64,15 @@ class LanguageRules:
     agreeing_aux: frozenset[str]
     passive_aux: frozenset[str]
     invariable_aux: frozenset[str]
+    endings: tuple[tuple[str, str | None], ...] = ()
     expletive_pronouns: frozenset[str] = frozenset()
     expletive_verbs: frozenset[str] = frozenset()
+    expletive_clausal_verbs: frozenset[str] = frozenset()
     expletive_clitics: frozenset[str] = frozenset()
     expletive_copular_clause: bool = False
 
     def pronoun(self, form: str) -> tuple[PronounForm, ...]:
-        return self.pronouns.get(form.lower(), ())
+        return self.pronouns.get(pronoun_key(form), ())
 
     def is_person_noun(self, form: str) -> bool:
         return form.lower() in self.noun_genders
@@ -79,6 +88,15 @@ class LanguageRules:
     def article_gender(self, form: str) -> str | None:
         entry = self.articles.get(form.lower())
         return entry[0] if entry else None
+
+    def ending_gender(self, form: str) -> tuple[bool, str | None]:
+        """(matched, gender) from the agreement endings: the longest matching ending decides."""
+        low = form.lower()
+        best = None
+        for ending, gender in self.endings:
+            if low.endswith(ending) and len(low) > len(ending) and (best is None or len(ending) > len(best[0])):
+                best = (ending, gender)
+        return (True, best[1]) if best else (False, None)
 
     def honorific(self, form: str) -> str | None:
         return self.honorifics.get(form.lower().rstrip("."))
@@ -145,6 +163,8 @@ def parse_rules(data: Any, path: Path) -> LanguageRules:
         ptype = _require(item, "type", str, path, where + ".")
         if ptype not in PRONOUN_TYPES:
             raise _fail(path, f"{where}.type", f"expected one of {sorted(PRONOUN_TYPES)}, found {ptype!r}")
+        if item.get("case") not in CASE_VALUES:
+            raise _fail(path, f"{where}.case", f"expected one of nom, acc, dat, gen or null, found {item.get('case')!r}")
         animate = item.get("animate", True)
         if not isinstance(animate, bool):
             raise _fail(path, f"{where}.animate", f"expected true or false, found {animate!r}")
@@ -168,6 +188,15 @@ def parse_rules(data: Any, path: Path) -> LanguageRules:
         articles[str(form).lower()] = (spec.get("gender"), spec.get("counterpart"))
 
     agreement = _require(data, "agreement", dict, path)
+    endings = []
+    for k, item in enumerate(agreement.get("endings", [])):
+        if not (isinstance(item, list) and len(item) == 2 and isinstance(item[0], str)
+                and item[1] in ("fem", "masc", None)):
+            raise _fail(path, f"agreement.endings[{k}]", f"expected [ending, fem|masc|null], found {item!r}")
+        endings.append((item[0].lower(), item[1]))
+    unknown_agr = set(agreement) - {"dependents", "copulas", "agreeing_aux", "passive_aux", "invariable_aux", "endings"}
+    if unknown_agr:
+        raise _fail(path, f"agreement.{sorted(unknown_agr)[0]}", "unknown key")
     lists = {k: frozenset(_str_list(agreement, k, path, "agreement.")) for k in (
         "dependents", "copulas", "agreeing_aux", "passive_aux", "invariable_aux")}
 
@@ -182,11 +211,13 @@ def parse_rules(data: Any, path: Path) -> LanguageRules:
     for form in _str_list(nouns, "common", path, "person_nouns."):
         noun_genders.setdefault(form.lower(), ("common", form.lower()))
 
-    expl = data.get("expletives", {"pronouns": [], "verbs": [], "clitics": [], "copular_clause": False})
+    expl = data.get("expletives", {"pronouns": [], "verbs": [], "clausal_verbs": [], "clitics": [],
+                                   "copular_clause": False})
     if not isinstance(expl, dict):
         raise _fail(path, "expletives", f"expected a mapping, found {expl!r}")
+    expl = {"clausal_verbs": [], **expl}  # optional: verbs impersonal only with a clausal complement
     expl_lists = {k: frozenset(w.lower() for w in _str_list(expl, k, path, "expletives."))
-                  for k in ("pronouns", "verbs", "clitics")}
+                  for k in ("pronouns", "verbs", "clausal_verbs", "clitics")}
     copular_clause = _require(expl, "copular_clause", bool, path, "expletives.")
 
     return LanguageRules(
@@ -200,8 +231,10 @@ def parse_rules(data: Any, path: Path) -> LanguageRules:
         articles=articles,
         noun_genders=noun_genders,
         **lists,
+        endings=tuple(endings),
         expletive_pronouns=expl_lists["pronouns"],
         expletive_verbs=expl_lists["verbs"],
+        expletive_clausal_verbs=expl_lists["clausal_verbs"],
         expletive_clitics=expl_lists["clitics"],
         expletive_copular_clause=copular_clause,
     )
