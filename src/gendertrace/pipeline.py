@@ -7,7 +7,7 @@ from dataclasses import dataclass, field
 
 from gendertrace import __version__
 from gendertrace.coref.sieves import resolve_chains
-from gendertrace.evidence.resolve import build_entities
+from gendertrace.evidence.resolve import build_entities, dedupe
 from gendertrace.findings.detect import detect_findings
 from gendertrace.link.align import anchor_alignment, merge, statistical_alignments
 from gendertrace.link.linker import link_mentions
@@ -150,9 +150,15 @@ class Scorer:
         links = link_mentions(src_mentions, tgt_mentions, src_res, tgt_res, pd.source, pd.target, alignments,
                               self.lexicon)
         entities, _ = build_entities(src_res, tgt_res, tgt_mentions, links)
+        # Per source segment, the gender marks of its person mentions (clitics that may stand for things aside).
+        segment_evidence: list[list] = [[] for _ in doc.segments]
+        for m in src_mentions:
+            if m.animate:
+                segment_evidence[m.seg].extend(m.marks)
+        segment_evidence = [list(dedupe(ev)) for ev in segment_evidence]
         findings, stats = detect_findings(
             entities, links, [s.target for s in doc.segments], seg_ids, tgt_res.certainty,
-            self.settings.min_confidence, tgt_res.chain_of,
+            self.settings.min_confidence, tgt_res.chain_of, segment_evidence,
         )
         return DocumentResult(doc.doc_id, self.src_lang, self.tgt_lang, tuple(entities), tuple(findings), stats,
                               tuple(src_res.chains) + tuple(tgt_res.chains))

@@ -11,7 +11,9 @@ from __future__ import annotations
 from collections.abc import Sequence
 from dataclasses import dataclass, replace
 
-from gendertrace.evidence.resolve import resolve_gender
+import math
+
+from gendertrace.evidence.resolve import STRENGTH_SCALE, resolve_gender
 from gendertrace.model import DocumentStats, Entity, EvidenceItem, Finding, Link, Mention
 
 PREDICATE_RULES = ("predicative with copula", "participle with agreeing auxiliary", "secondary predicate")
@@ -52,6 +54,8 @@ def target_references(m: Mention, target_text: str) -> list[Reference]:
 
 # The target's own words count for less than the source's when they are evidence about another target word.
 TARGET_FACTOR = 0.8
+# A segment-level verdict, used only when the entity's own evidence is silent, counts for this much.
+SEGMENT_FACTOR = 0.75
 
 
 def _pooled_verdict(source: Sequence[EvidenceItem], others: Sequence[EvidenceItem]):
@@ -68,13 +72,16 @@ def detect_findings(
     certainty: dict[str, float],
     min_confidence: float = 0.5,
     target_chain_of: dict[str, str] | None = None,
+    segment_evidence: Sequence[Sequence[EvidenceItem]] | None = None,
 ) -> tuple[list[Finding], DocumentStats]:
     """Check every gendered target reference of every entity against the rest of the document's evidence.
 
     Each reference is judged leave-one-out: against the source evidence when that alone is confident, else
     against the source evidence pooled with the entity's other target references. A disagreement is a
     contradiction when the source leans the same way as the verdict, an inconsistency when only the target
-    speaks. An entity whose source is silent and whose target commits to one gender gets one assumption.
+    speaks. Where neither settles it, a source segment whose person words all have one gender speaks for the
+    target words of that segment (less surely: the word may be about someone the segment does not name). An
+    entity whose source is silent and whose target commits to one gender gets one assumption.
     """
     findings: list[Finding] = []
     total_refs = checked = consistent = 0
@@ -124,6 +131,13 @@ def detect_findings(
                 support = [x for x in source_ev if x.gender == verdict.gender] + [
                     mk for mk in others if mk.gender == verdict.gender]
             conf = verdict.confidence * reach(r)
+            if (conf < min_confidence or verdict.gender not in ("fem", "masc")) and not source_ev and segment_evidence:
+                seg_ev = segment_evidence[r.seg]
+                seg_verdict = resolve_gender(seg_ev) if seg_ev else None
+                if seg_verdict and seg_verdict.gender in ("fem", "masc") and seg_verdict.confidence >= 0.99 * (
+                        1.0 - math.exp(-sum(e.weight for e in seg_ev) / STRENGTH_SCALE)):
+                    verdict, kind, support = seg_verdict, "contradiction", list(seg_ev)
+                    conf = seg_verdict.confidence * SEGMENT_FACTOR
             if verdict.gender not in ("fem", "masc") or conf < min_confidence:
                 continue
             checked += 1

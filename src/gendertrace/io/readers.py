@@ -3,6 +3,8 @@
 What the readers promise:
 
 - The format comes from the extension (`.tsv`, `.csv`, `.jsonl` or `.ndjson`, any case) unless `fmt` names it.
+  `.xlf`/`.xliff` and `.tmx` files are read by `gendertrace.io.xliff` and `gendertrace.io.tmx` (their
+  docstrings say what those promise); a TMX file is one document unless `tmx_group` names a grouping property.
 - TSV and CSV start with a header row; columns other than the five known ones are ignored, in any order.
   TSV cells are taken literally (no quoting), so a TSV cell cannot hold a tab or a line break; CSV follows the
   usual double-quote convention, so quoted cells may hold commas, quotes (doubled) and line breaks.
@@ -32,9 +34,12 @@ from pathlib import Path
 from gendertrace.errors import InputError
 from gendertrace.model import Document, Segment
 
-FORMATS: tuple[str, ...] = ("tsv", "csv", "jsonl")
-EXTENSIONS = {".tsv": "tsv", ".csv": "csv", ".jsonl": "jsonl", ".ndjson": "jsonl"}
-FORMAT_ALIASES = {"tsv": "tsv", "csv": "csv", "jsonl": "jsonl", "ndjson": "jsonl"}
+FORMATS: tuple[str, ...] = ("tsv", "csv", "jsonl", "xliff", "tmx")
+XML_FORMATS: tuple[str, ...] = ("xliff", "tmx")
+EXTENSIONS = {".tsv": "tsv", ".csv": "csv", ".jsonl": "jsonl", ".ndjson": "jsonl",
+              ".xlf": "xliff", ".xliff": "xliff", ".tmx": "tmx"}
+FORMAT_ALIASES = {"tsv": "tsv", "csv": "csv", "jsonl": "jsonl", "ndjson": "jsonl",
+                  "xliff": "xliff", "xlf": "xliff", "tmx": "tmx"}
 REQUIRED_FIELDS: tuple[str, ...] = ("doc_id", "seg_id", "source", "target")
 OPTIONAL_FIELDS: tuple[str, ...] = ("reference",)
 
@@ -73,12 +78,13 @@ class _Row:
 
 
 def detect_format(path: str | Path, fmt: str | None = None) -> str:
-    """The input format ("tsv", "csv" or "jsonl") named by `fmt`, else by the file's extension."""
+    """The input format (one of FORMATS) named by `fmt`, else by the file's extension."""
     if fmt is not None:
         key = fmt.lower().lstrip(".")
         if key not in FORMAT_ALIASES:
             raise InputError(
-                str(path), None, f"unknown input format {fmt!r}: expected one of tsv, csv, jsonl (or ndjson)"
+                str(path), None,
+                f"unknown input format {fmt!r}: expected one of tsv, csv, jsonl (or ndjson), xliff, tmx",
             )
         return FORMAT_ALIASES[key]
     suffix = Path(path).suffix.lower()
@@ -87,18 +93,24 @@ def detect_format(path: str | Path, fmt: str | None = None) -> str:
         raise InputError(
             str(path),
             None,
-            f"unknown input format: extension {shown!r} is none of .tsv, .csv, .jsonl, .ndjson",
+            f"unknown input format: extension {shown!r} is none of "
+            f".tsv, .csv, .jsonl, .ndjson, .xlf, .xliff, .tmx",
         )
     return EXTENSIONS[suffix]
 
 
-def iter_documents(path: str | Path, fmt: str | None = None) -> Iterator[Document]:
-    """Yield the documents of a file one at a time, reading it lazily.
+def iter_documents(
+    path: str | Path, fmt: str | None = None, tmx_group: str | None = None
+) -> Iterator[Document]:
+    """Yield the documents of a file one at a time, reading it lazily (XLIFF and TMX files are parsed whole).
 
     The rows of each document must be consecutive: a `doc_id` that comes back after another document raises
     InputError naming both lines (`read_corpus` gathers such rows instead).
     """
     path_s = str(path)
+    if detect_format(path_s, fmt) in XML_FORMATS:
+        yield from _xml_documents(path_s, detect_format(path_s, fmt), tmx_group)
+        return
     done: dict[str, int] = {}  # doc_id -> first line, for documents already yielded
     for doc_id, first_line, rows in _runs(path_s, fmt):
         if doc_id in done:
@@ -112,21 +124,26 @@ def iter_documents(path: str | Path, fmt: str | None = None) -> Iterator[Documen
         yield Document(doc_id, _checked_segments(path_s, doc_id, rows), origin=path_s)
 
 
-def read_corpus(path: str | Path, fmt: str | None = None) -> list[Document]:
+def read_corpus(path: str | Path, fmt: str | None = None, tmx_group: str | None = None) -> list[Document]:
     """All documents of a file, in order of first appearance; rows sharing a `doc_id` are gathered."""
-    return read_corpus_with_report(path, fmt)[0]
+    return read_corpus_with_report(path, fmt, tmx_group)[0]
 
 
-def read_corpus_with_report(path: str | Path, fmt: str | None = None) -> tuple[list[Document], ReadReport]:
+def read_corpus_with_report(
+    path: str | Path, fmt: str | None = None, tmx_group: str | None = None
+) -> tuple[list[Document], ReadReport]:
     """The documents of a file (as `read_corpus`) and a report listing its untranslated segments."""
     path_s = str(path)
-    gathered: dict[str, list[_Row]] = {}
-    for doc_id, _, rows in _runs(path_s, fmt):
-        gathered.setdefault(doc_id, []).extend(rows)
-    documents = [
-        Document(doc_id, _checked_segments(path_s, doc_id, rows), origin=path_s)
-        for doc_id, rows in gathered.items()
-    ]
+    if detect_format(path_s, fmt) in XML_FORMATS:
+        documents = _xml_documents(path_s, detect_format(path_s, fmt), tmx_group)
+    else:
+        gathered: dict[str, list[_Row]] = {}
+        for doc_id, _, rows in _runs(path_s, fmt):
+            gathered.setdefault(doc_id, []).extend(rows)
+        documents = [
+            Document(doc_id, _checked_segments(path_s, doc_id, rows), origin=path_s)
+            for doc_id, rows in gathered.items()
+        ]
     untranslated = tuple(ref for doc in documents for ref in untranslated_in(doc))
     report = ReadReport(
         path=path_s,
@@ -150,6 +167,16 @@ def untranslated_in(document: Document) -> list[SegmentRef]:
 
 # ----------------------------------------------------------------------------------------------------
 # Grouping
+
+
+def _xml_documents(path: str, kind: str, tmx_group: str | None) -> list[Document]:
+    if kind == "xliff":
+        from gendertrace.io.xliff import xliff_documents
+
+        return xliff_documents(path)
+    from gendertrace.io.tmx import tmx_documents
+
+    return tmx_documents(path, group_by=tmx_group)
 
 
 def _runs(path: str, fmt: str | None) -> Iterator[tuple[str, int, list[_Row]]]:

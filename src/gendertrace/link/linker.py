@@ -72,6 +72,9 @@ def link_mentions(
                 link = Link(m.id, chain[cands[0].id], "lexicon", CONF_LEXICON, cands[0].id)
         if link is None and m.kind != "zero":
             via = {by_token[(m.seg, i)] for i in aligned_sources(m.seg, m.tokens) if (m.seg, i) in by_token}
+            if m.pron_type == "possessive":
+                # "his daughter" / "su hija": a possessive aligned to the possessed noun is not about it.
+                via = {v for v in via if v.kind == "pronoun"}
             hits = {chain[v.id] for v in via}
             if len(hits) == 1:
                 link = Link(m.id, hits.pop(), "alignment", CONF_ALIGNED, min(via, key=lambda v: v.start).id)

@@ -281,6 +281,11 @@ def _pick_pronoun_form(t: Token, rules: LanguageRules):
     forms = rules.pronoun(t.text)
     if t.upos == "DET" and not any(f.type == "possessive" for f in forms):
         return None  # "la", "le", "el" as articles
+    # Where the parse gives the token's own number, prefer the reading that has it (German "sie": sing/plur).
+    number = {"Sing": "sing", "Plur": "plur"}.get(t.feat("Number") or "")
+    if number and t.feat("Poss") != "Yes":
+        fitting = tuple(f for f in forms if f.number in (number, None))
+        forms = fitting or forms
     poss = t.feat("Poss") == "Yes" or t.deprel == "nmod:poss"
     wanted = "possessive" if poss else None
     for f in forms:
@@ -402,6 +407,10 @@ def _predicate_marks(parsed, i, role, clause, rules, side, seg, seg_id, zero: bo
             if ng not in ("fem", "masc"):
                 return
             g = ng
+            if g == "masc":
+                # A masculine predicate noun is also the generic form ("es ingeniero" of a profession).
+                marks.append(_mark(side, seg, seg_id, tok, g, "lexical", W_UNMARKED_NOUN, "masculine noun form"))
+                return
         weight = W_ZERO_MASC_PREDICATE if zero and g == "masc" else W_PREDICATE
         marks.append(_mark(side, seg, seg_id, tok, g, "agreement", weight, rule))
 
