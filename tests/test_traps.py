@@ -335,7 +335,7 @@ def test_reverse_direction_she_against_el_piloto_is_a_contradiction(score):
         ("She was tired.", "Estaba cansada."),
     ])
     assert [(f.kind, f.seg_id, f.start, f.end, f.text, f.expected, f.found) for f in result.findings] == [
-        ("contradiction", "1", 0, 2, "El", "fem", "masc"),
+        ("contradiction", "1", 0, 9, "El piloto", "fem", "masc"),  # determiner to noun
     ]
     assert [e.text for e in result.findings[0].evidence] == ["She"]
 

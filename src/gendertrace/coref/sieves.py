@@ -236,9 +236,27 @@ def _unique_container(words: set[str], names: Sequence[Mention], cl: _Clusters) 
     return len(containers) <= 1
 
 
+def _relative_antecedent(parsed: ParsedText, clause: int) -> int:
+    """The noun a relative clause hangs on, when `clause` is (inside) one; else -1."""
+    t = parsed.tokens[clause] if clause >= 0 else None
+    for _ in range(4):
+        if t is None or t.is_root:
+            return -1
+        if t.deprel in ("acl:relcl", "relcl"):
+            return t.head
+        t = parsed.tokens[t.head]
+    return -1
+
+
+def _subtree(parsed: ParsedText, i: int) -> set[int]:
+    return set(parsed.subtree(i))
+
+
 def _salience(cand: Mention, m: Mention) -> float:
     distance = m.seg - cand.seg
     score = -0.8 * distance
+    if distance == 0:
+        score -= min(0.02 * max(m.head - cand.head, 0), 0.4)  # nearer words first within a segment
     if cand.role in ("nsubj", "nsubj:pass"):
         score += 0.6
     if cand.kind in ("name", "noun"):
@@ -270,6 +288,11 @@ def _pick_antecedent(m, ms, cl, parses, use_gender):
                 continue
             if m.role in ("nsubj", "nsubj:pass") and _nonfinite_under(parses[m.seg], m.clause) == c.clause >= 0:
                 continue
+        # Binding principle C: a subject (overt or zero) does not corefer with a name or noun inside its own
+        # clause ("∅ dijo [que el sospechoso...]", "he said John...").
+        if (m.role in ("nsubj", "nsubj:pass") and c.seg == m.seg and c.kind in ("name", "noun")
+                and m.clause >= 0 and c.head in _subtree(parses[m.seg], m.clause)):
+            continue
         # A speaker outside a quotation is not a person mentioned inside it, and vice versa.
         if c.seg == m.seg and c.sent == m.sent and c.quoted != m.quoted:
             continue
@@ -281,6 +304,8 @@ def _pick_antecedent(m, ms, cl, parses, use_gender):
         s = _salience(c, m)
         if m.pron_type == "possessive" and c.seg == m.seg and c.clause == m.clause and c.role in ("nsubj", "nsubj:pass"):
             s += 0.4  # possessives lean to the subject of their own clause
+        if m.pron_type == "possessive" and c.seg == m.seg and c.head == _relative_antecedent(parses[m.seg], m.clause):
+            s += 0.6  # in a relative clause, the noun it describes is that clause's subject or object
         members = cl.members(c.id)
         # Entities mentioned often stay salient; on the source side a matching known gender is preferred.
         s += min(0.1 * (len(members) - 1), 0.4)

@@ -41,6 +41,8 @@ def target_references(m: Mention, target_text: str) -> list[Reference]:
         genders = {mk.gender for mk in np_marks}
         if len(genders) == 1:
             start, end = min(mk.start for mk in np_marks), max(mk.end for mk in np_marks)
+            if m.kind == "noun":
+                start, end = min(start, m.start), max(end, m.end)  # "la secrétaire": determiner to noun
             refs.append(Reference(m, m.seg, np_marks[0].seg_id, start, end, target_text[start:end], genders.pop(),
                                   tuple(np_marks)))
         else:
@@ -54,6 +56,8 @@ def target_references(m: Mention, target_text: str) -> list[Reference]:
 
 # The target's own words count for less than the source's when they are evidence about another target word.
 TARGET_FACTOR = 0.8
+# Source evidence this confident settles a gender alone; weaker source evidence is pooled with the target's.
+SOURCE_DECISIVE = 0.6
 # A segment-level verdict, used only when the entity's own evidence is silent, counts for this much.
 SEGMENT_FACTOR = 0.75
 
@@ -115,7 +119,7 @@ def detect_findings(
 
         judged = 0
         for r in ordered:
-            if source_verdict and source_verdict.confidence >= min_confidence:
+            if source_verdict and source_verdict.confidence >= max(min_confidence, SOURCE_DECISIVE):
                 verdict, kind, support = source_verdict, "contradiction", source_ev
             else:
                 pool = {(o.seg, o.start, o.end): o for o in ordered}

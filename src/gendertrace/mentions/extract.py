@@ -416,6 +416,10 @@ def _predicate_marks(parsed, i, role, clause, rules, side, seg, seg_id, zero: bo
 
     if has_cop and pred.upos in ("ADJ", "NOUN", "VERB"):
         add(pred, "predicative with copula")
+    elif has_cop and pred.upos in ("PRON", "NUM", "DET") and rules.article_gender(pred.text) in ("fem", "masc"):
+        # Partitive predicates agree with the subject: "es una de las pocas pilotos", "l'une des rares".
+        g = rules.article_gender(pred.text)
+        marks.append(_mark(side, seg, seg_id, pred, g, "agreement", W_PREDICATE, "predicative with copula"))
     elif pred.upos in ("VERB", "ADJ") and pred.feat("VerbForm") == "Part":
         # An agreeing auxiliary makes the participle agree even under a compound tense ("ha sido elegida",
         # "a été élue"); with only the compound-tense auxiliary it is invariable ("ha operado", "a opéré").

@@ -1,7 +1,8 @@
-"""Scoring results read back for review: the results JSONL (DESIGN.md, "Contracts") joined with the input texts.
+"""Scoring results read back for review: the results JSONL (DESIGN.md, "Contracts") joined with the input.
 
-Only what the review needs is kept. Every finding gets a stable id ("f<document>-<finding>", 1-based, in results
-order) that the HTML report, the CSV and the XLIFF notes share, so a post-editor can cross-reference them.
+Only what the review needs is kept. Every finding gets a stable id ("f<document>-<finding>", 1-based, in
+results order) that the HTML report, the CSV and the XLIFF notes share, so a post-editor can cross-reference
+them.
 """
 
 from __future__ import annotations
@@ -35,7 +36,8 @@ class ReviewEvidence:
 
     def summary(self) -> str:
         """'la' (source, segment 2, morphology, fem)"""
-        details = ", ".join(x for x in (self.side, f"segment {self.seg_id}", self.kind, self.gender or "") if x)
+        parts = (self.side, f"segment {self.seg_id}", self.kind, self.gender or "")
+        details = ", ".join(x for x in parts if x)
         return f"{self.text!r} ({details})"
 
 
@@ -112,7 +114,8 @@ def load_review(results_path: str | Path, documents: list[Document]) -> list[Rev
     except OSError as exc:
         raise InputError(path, None, f"cannot open: {exc.strerror}") from exc
     except UnicodeDecodeError as exc:
-        raise InputError(path, None, f"not valid UTF-8 ({exc.reason}); expected a results JSONL file") from exc
+        raise InputError(path, None, f"not valid UTF-8 ({exc.reason}); expected a results JSONL file") \
+            from exc
     for lineno, text in enumerate(lines, 1):
         if not text.strip():
             continue
@@ -122,7 +125,10 @@ def load_review(results_path: str | Path, documents: list[Document]) -> list[Rev
             raise InputError(path, lineno, f"malformed JSON ({exc.msg} at column {exc.colno})") from exc
         if not isinstance(obj, dict):
             raise InputError(path, lineno, "expected one JSON object per document")
-        out.append(_document(path, lineno, len(out) + 1, obj, by_id))
+        try:
+            out.append(_document(path, lineno, len(out) + 1, obj, by_id))
+        except (TypeError, ValueError, AttributeError) as exc:
+            raise InputError(path, lineno, f"unexpected value in the results ({exc})") from exc
     if not out:
         raise InputError(path, None, "no results: expected one JSON object per document")
     return out
@@ -168,12 +174,14 @@ def _finding(path: str, line: int, fid: str, doc_id: str, f: object, labels: dic
             raise InputError(path, line, f"finding {fid}: evidence items need {', '.join(EVIDENCE_KEYS)}")
         evidence.append(ReviewEvidence(
             side=str(e["side"]), seg_id=str(e["seg_id"]), start=int(e["start"]), end=int(e["end"]),
-            text=str(e["text"]), gender=e.get("gender"), kind=str(e.get("kind", "")), rule=str(e.get("rule", "")),
+            text=str(e["text"]), gender=e.get("gender"), kind=str(e.get("kind", "")),
+            rule=str(e.get("rule", "")),
         ))
     entity = str(f.get("entity", ""))
     return ReviewFinding(
         id=fid, doc_id=doc_id, kind=str(f["kind"]), seg_id=str(f["seg_id"]), start=int(f["start"]),
-        end=int(f["end"]), text=str(f["text"]), expected=f.get("expected"), found=f.get("found"), entity=entity,
+        end=int(f["end"]), text=str(f["text"]), expected=f.get("expected"), found=f.get("found"),
+        entity=entity,
         entity_label=str(labels.get(entity, "") or ""), confidence=float(f["confidence"]),
         message=str(f.get("message", "")), evidence=tuple(evidence),
     )
