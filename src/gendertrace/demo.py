@@ -126,5 +126,12 @@ def run_demo(out: Path, corpus: Path | None = None) -> str:
         inc = compare(system, gold, "inconsistency")
         lines.append(f"(inconsistency: gold {inc.gold}, found {inc.system}, precision {_fmt(inc.precision).strip()}, "
                      f"recall {_fmt(inc.recall).strip()})")
-    lines += ["", f"results written to {out}/"]
+    # The two engine versions go into a history store, compared with their statistics.
+    from gendertrace.history.demo import record_demo
+
+    db = out / "history.db"
+    if db.exists():
+        db.unlink()
+    lines += ["", "engine versions (history store):", "", record_demo(out, db, corpus)]
+    lines += ["", f"results written to {out}/ (history store: {db})"]
     return "\n".join(lines)

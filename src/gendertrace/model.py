@@ -233,6 +233,8 @@ class Entity:
     gender: str | None
     confidence: float
     label: str = ""
+    checked: int = 0  # gendered target references of this entity judged against the evidence
+    consistent: int = 0  # of those, the ones that agree with it
 
     def to_json(self) -> dict:
         return {
@@ -240,6 +242,8 @@ class Entity:
             "label": self.label,
             "gender": self.gender,
             "confidence": round(self.confidence, 3),
+            "checked": self.checked,
+            "consistent": self.consistent,
             "source_mentions": [_mention_json(m) for m in self.source_mentions],
             "target_mentions": [_mention_json(m) for m in self.target_mentions],
             "evidence": [e.to_json() for e in self.evidence],

@@ -3,7 +3,7 @@
 from __future__ import annotations
 
 from collections.abc import Callable, Iterable, Iterator, Sequence
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 
 from gendertrace import __version__
 from gendertrace.coref.sieves import resolve_chains
@@ -74,6 +74,10 @@ class Scorer:
         s = self.settings
         self.src_parser = src_parser or get_parser(src_lang, s.parser, s.src_model)
         self.tgt_parser = tgt_parser or get_parser(tgt_lang, s.parser, s.tgt_model)
+        # Hook: the statistical aligner of a batch; gendertrace.scale swaps in priors, threads or a frozen model.
+        self.statistical_aligner: Callable[[Sequence[ParsedText], Sequence[ParsedText]], list | None] = (
+            statistical_alignments
+        )
 
     def signature(self) -> dict:
         return {
@@ -114,7 +118,7 @@ class Scorer:
         """Word alignments of every segment of a batch: statistical over the batch, merged with anchors."""
         flat_src = [p for pd in parsed for p in pd.source]
         flat_tgt = [p for pd in parsed for p in pd.target]
-        stat = statistical_alignments(flat_src, flat_tgt)
+        stat = self.statistical_aligner(flat_src, flat_tgt)
         out, k = [], 0
         for pd in parsed:
             aligns = []
@@ -156,10 +160,12 @@ class Scorer:
             if m.animate:
                 segment_evidence[m.seg].extend(m.marks)
         segment_evidence = [list(dedupe(ev)) for ev in segment_evidence]
-        findings, stats = detect_findings(
+        findings, stats, per_entity = detect_findings(
             entities, links, [s.target for s in doc.segments], seg_ids, tgt_res.certainty,
             self.settings.min_confidence, tgt_res.chain_of, segment_evidence,
         )
+        entities = [replace(e, checked=per_entity.get(e.id, (0, 0))[0], consistent=per_entity.get(e.id, (0, 0))[1])
+                    for e in entities]
         return DocumentResult(doc.doc_id, self.src_lang, self.tgt_lang, tuple(entities), tuple(findings), stats,
                               tuple(src_res.chains) + tuple(tgt_res.chains))
 

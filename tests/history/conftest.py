@@ -20,7 +20,6 @@ from pathlib import Path
 
 import pytest
 
-
 PG_PORT = 54329  # only names the socket file (.s.PGSQL.PORT) in a private folder: no TCP listener
 
 
@@ -58,7 +57,8 @@ def pg_server() -> Iterator[PgServer]:
                         "(Debian's postgresql package creates it)")
         run_as = {"user": pw.pw_uid, "group": pw.pw_gid, "extra_groups": []}
     base = tempfile.mkdtemp(prefix="gendertrace-pg-")
-    data, sockets, log = os.path.join(base, "data"), os.path.join(base, "run"), os.path.join(base, "server.log")
+    data, sockets = os.path.join(base, "data"), os.path.join(base, "run")
+    log = os.path.join(base, "server.log")
     os.mkdir(sockets)
     if run_as:
         for p in (base, sockets):

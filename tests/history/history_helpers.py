@@ -26,7 +26,7 @@ OTHER = {"fem": "masc", "masc": "fem"}
 
 @dataclass(frozen=True)
 class Person:
-    """gender: the source evidence's gender (None: the source is silent); refs target words, wrong of them off."""
+    """gender: of the source evidence (None: the source is silent); refs target words, `wrong` of them off."""
 
     gender: str | None
     refs: int
@@ -49,23 +49,25 @@ def document(doc_id: str, people: Sequence[Person], extra_entity_keys: bool = Fa
                              "text": PRONOUN[said], "gender": said, "kind": "pronoun", "weight": 1.0,
                              "rule": "personal pronoun"})
             if p.gender and said != p.gender:
-                findings.append({"kind": "contradiction", "seg_id": seg, "start": 0, "end": len(PRONOUN[said]),
-                                 "text": PRONOUN[said], "expected": p.gender, "found": said, "entity": eid,
+                findings.append({"kind": "contradiction", "seg_id": seg, "start": 0,
+                                 "end": len(PRONOUN[said]), "text": PRONOUN[said], "expected": p.gender,
+                                 "found": said, "entity": eid,
                                  "confidence": 0.8, "message": "", "evidence": evidence[:1]})
         if p.gender:
             checked += p.refs
             consistent += p.refs - p.wrong
         elif p.refs:
             findings.append({"kind": "assumption", "seg_id": "2", "start": 0, "end": 2, "text": "he",
-                             "expected": None, "found": "masc", "entity": eid, "confidence": 0.5, "message": "",
-                             "evidence": []})
+                             "expected": None, "found": "masc", "entity": eid, "confidence": 0.5,
+                             "message": "", "evidence": []})
         entity = {"id": eid, "label": f"person {i + 1}", "gender": p.gender,
                   "confidence": 0.9 if p.gender else 0.0, "source_mentions": [], "target_mentions": [],
                   "evidence": evidence}
         if extra_entity_keys and p.gender:
             entity["checked"], entity["consistent"] = p.refs, p.refs - p.wrong
         entities.append(entity)
-    kinds = {k: sum(1 for f in findings if f["kind"] == k) for k in ("contradiction", "inconsistency", "assumption")}
+    kinds = {k: sum(1 for f in findings if f["kind"] == k)
+             for k in ("contradiction", "inconsistency", "assumption")}
     return {"doc_id": doc_id, "src_lang": "es", "tgt_lang": "en", "entities": entities, "findings": findings,
             "stats": {"segments": 1 + max((p.refs for p in people), default=0), "entities": len(people),
                       "target_references": checked, "checked": checked, "consistent": consistent,
@@ -84,8 +86,9 @@ def write_results(path: Path, docs: Sequence[dict], **signature) -> Path:
 
 
 def simple_docs(rates: Sequence[tuple[int, int]], prefix: str = "d") -> list[dict]:
-    """One document per (consistent, checked): a woman with the checked words, checked - consistent of them off."""
-    return [document(f"{prefix}{k:03d}", [Person("fem", chk, chk - cons)]) for k, (cons, chk) in enumerate(rates)]
+    """One document per (consistent, checked): a woman with `checked` words, `checked - consistent` off."""
+    return [document(f"{prefix}{k:03d}", [Person("fem", chk, chk - cons)])
+            for k, (cons, chk) in enumerate(rates)]
 
 
 def write_input(path: Path, rows: Sequence[tuple[str, str, str, str, str | None]]) -> Path:

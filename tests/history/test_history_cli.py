@@ -1,4 +1,4 @@
-"""`gendertrace history` through the main command line: record, list, compare (and its gate), chart, export."""
+"""`gendertrace history` through the main command line: record, list, compare and its gate, chart, export."""
 
 from __future__ import annotations
 
@@ -36,7 +36,8 @@ def _results(tmp_path, name, rates, **signature):
 
 
 def test_record_then_list_uses_the_default_store_in_the_current_folder(cli, tmp_path):
-    out = cli("history", "record", _results(tmp_path, "a", [(3, 4), (2, 2)]), "--engine", "lumen", "--version", "1")
+    out = cli("history", "record", _results(tmp_path, "a", [(3, 4), (2, 2)]), "--engine", "lumen",
+              "--version", "1")
     assert "recorded lumen:1: 2 documents, 5/6 consistent (rate 0.833)" in out.output
     assert (tmp_path / ".gendertrace" / "history.db").is_file()
     cli("history", "record", _results(tmp_path, "b", [(4, 4), (2, 2)]), "--engine", "lumen", "--version", "2")
@@ -44,6 +45,12 @@ def test_record_then_list_uses_the_default_store_in_the_current_folder(cli, tmp_
     assert listing[0].split()[:3] == ["run", "recorded", "(UTC)"]
     assert [line.split()[0] for line in listing[2:]] == ["lumen:1", "lumen:2"]
     assert "5/6" in listing[2] and "0.833" in listing[2] and "0a1b2c3d4e5f" in listing[2]
+
+
+def test_reading_commands_do_not_create_a_store(cli, tmp_path):
+    out = cli("history", "list", code=1)
+    assert "no history store at .gendertrace/history.db (record a run first" in out.stderr
+    assert not (tmp_path / ".gendertrace").exists()
 
 
 def test_db_option_and_environment_name_the_store(cli, tmp_path, monkeypatch):
@@ -63,7 +70,8 @@ def test_recording_an_existing_run_fails_with_a_message(cli, tmp_path):
 
 
 def test_an_engine_name_with_a_colon_is_a_usage_error(cli, tmp_path):
-    out = cli("history", "record", _results(tmp_path, "a", [(1, 1)]), "--engine", "a:b", "--version", "1", code=2)
+    out = cli("history", "record", _results(tmp_path, "a", [(1, 1)]), "--engine", "a:b", "--version", "1",
+              code=2)
     assert "'a:b'" in out.stderr
 
 
@@ -73,7 +81,8 @@ def test_compare_prints_rates_intervals_tests_and_the_gate(cli, tmp_path):
     cli("history", "record", _results(tmp_path, "b", [(4, 5), (4, 4), (2, 3), (5, 7)]), "--engine", "lumen",
         "--version", "2")
     text = cli("history", "compare", "lumen:1", "lumen:2", "--seed", "7").output
-    assert re.search(r"A\s+14/19\s+0\.737\s+\[0\.512, 0\.882\]", text)  # Wilson for 14/19, as statsmodels gives
+    # Wilson for 14/19 as statsmodels' proportion_confint gives it: (0.5121, 0.8819).
+    assert re.search(r"A\s+14/19\s+0\.737\s+\[0\.512, 0\.882\]", text)
     assert "B - A +0.053: 95% paired bootstrap" in text
     assert "approximate randomization p = " in text and "(10000 trials)" in text
     assert "gate: no regression" in text
@@ -83,7 +92,8 @@ def test_compare_prints_rates_intervals_tests_and_the_gate(cli, tmp_path):
 def test_fail_on_regression_exits_with_status_3_only_on_a_regression(cli, tmp_path):
     cli("history", "record", _results(tmp_path, "a", [(19, 20)] * 30), "--engine", "lumen", "--version", "1")
     cli("history", "record", _results(tmp_path, "b", [(15, 20)] * 30), "--engine", "lumen", "--version", "2")
-    worse = cli("history", "compare", "lumen:1", "lumen:2", "--fail-on-regression", "--trials", "2000", code=3)
+    worse = cli("history", "compare", "lumen:1", "lumen:2", "--fail-on-regression", "--trials", "2000",
+                code=3)
     assert "lumen:2 regresses against lumen:1: rate -0.200" in worse.stderr
     # Without the flag the same comparison only reports; the other way round is an improvement.
     assert "gate: REGRESSION" in cli("history", "compare", "lumen:1", "lumen:2", "--trials", "2000").output
@@ -108,6 +118,17 @@ def test_compare_names_runs_it_cannot_find_or_parse(cli, tmp_path):
     cli("history", "record", _results(tmp_path, "a", [(1, 2)]), "--engine", "lumen", "--version", "1")
     assert "not named ENGINE:VERSION" in cli("history", "compare", "lumen", "lumen:1", code=1).stderr
     assert "no run lumen:7" in cli("history", "compare", "lumen:1", "lumen:7", code=1).stderr
+
+
+def test_a_team_store_on_postgresql_records_and_compares(cli, tmp_path, pg_url):
+    for version, rates in (("1", [(19, 20)] * 12), ("2", [(12, 20)] * 12)):
+        cli("history", "record", _results(tmp_path, version, rates), "--engine", "lumen",
+            "--version", version, "--db", pg_url)
+    assert "lumen:2" in cli("history", "list", "--db", pg_url).output
+    out = cli("history", "compare", "lumen:1", "lumen:2", "--db", pg_url, "--fail-on-regression",
+              "--trials", "2000", code=3)
+    assert "gate: REGRESSION" in out.stdout
+    assert not (tmp_path / ".gendertrace").exists()
 
 
 def test_record_with_input_keeps_texts_for_the_mt_metrics(cli, tmp_path):

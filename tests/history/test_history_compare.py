@@ -109,7 +109,8 @@ def test_rates_carry_wilson_and_bootstrap_intervals(store, tmp_path):
 
 def test_the_gap_compares_entities_by_the_gender_of_their_source_evidence(store, tmp_path):
     docs_a = [document(f"d{k}", [Person("fem", 5, 2), Person("masc", 5), Person(None, 3)]) for k in range(4)]
-    docs_b = [document(f"d{k}", [Person("fem", 5, 1), Person("masc", 5, 1), Person(None, 3)]) for k in range(4)]
+    docs_b = [document(f"d{k}", [Person("fem", 5, 1), Person("masc", 5, 1), Person(None, 3)])
+              for k in range(4)]
     _record(store, tmp_path, "1", docs_a)
     _record(store, tmp_path, "2", docs_b)
     result = _compare(store)
@@ -136,8 +137,8 @@ def test_bleu_and_ter_match_values_worked_out_by_hand(store, tmp_path):
     # brevity penalty, so the geometric mean is (1/16) ** (1/4) = 1/2: BLEU 50.00. TER (Snover et al. 2006):
     # one edit over eight reference words, 12.50. Worked out by hand for this invented sentence.
     _record(store, tmp_path, "1", simple_docs([(1, 1)]),
-            [("d000", "1", "El milano rojo vuela sobre el valle.", "the red kite circles over the quiet valley",
-              REFERENCE)])
+            [("d000", "1", "El milano rojo vuela sobre el valle.",
+              "the red kite circles over the quiet valley", REFERENCE)])
     _record(store, tmp_path, "2", simple_docs([(1, 1)]),
             [("d000", "1", "El milano rojo vuela sobre el valle.", REFERENCE, REFERENCE)])
     result = _compare(store)
@@ -164,7 +165,8 @@ def test_chrf_matches_a_value_worked_out_by_hand(store, tmp_path):
 
 
 def test_metrics_are_refused_when_the_references_differ(store, tmp_path):
-    _record(store, tmp_path, "1", simple_docs([(1, 1)]), [("d000", "1", "Salió.", "She left.", "She went out.")])
+    _record(store, tmp_path, "1", simple_docs([(1, 1)]),
+            [("d000", "1", "Salió.", "She left.", "She went out.")])
     _record(store, tmp_path, "2", simple_docs([(1, 1)]), [("d000", "1", "Salió.", "She left.", "She left.")])
     result = _compare(store)
     assert result.mt is None and "references differ between the runs in 1 segment" in result.mt_note

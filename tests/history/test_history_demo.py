@@ -11,7 +11,8 @@ from gendertrace.history.store import HistoryStore
 def _demo_results(folder):
     for direction in ("es-en", "fr-en"):
         for version, wrong in (("v1", 2), ("v2", 1)):
-            docs = [document(f"{direction}-0{k}", [Person("fem", 3, wrong if k == 1 else 0), Person("masc", 2)])
+            docs = [document(f"{direction}-0{k}",
+                             [Person("fem", 3, wrong if k == 1 else 0), Person("masc", 2)])
                     for k in range(1, 4)]
             write_results(folder / f"{direction}.{version}.jsonl", docs)
     (folder / "notes.jsonl").write_text("", encoding="utf-8")  # not a demo results file: ignored

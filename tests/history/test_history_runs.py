@@ -12,8 +12,8 @@ from gendertrace.history.runs import estimate_checked, load_run, signature_diffe
 
 
 def _ev(seg, start, end, gender, rule, side="target"):
-    return {"side": side, "seg_id": seg, "start": start, "end": end, "text": "x" * (end - start), "gender": gender,
-            "kind": "morphology", "weight": 0.8, "rule": rule}
+    return {"side": side, "seg_id": seg, "start": start, "end": end, "text": "x" * (end - start),
+            "gender": gender, "kind": "morphology", "weight": 0.8, "rule": rule}
 
 
 def test_a_run_keeps_documents_in_order_with_their_statistics(tmp_path):
@@ -65,7 +65,8 @@ def test_words_in_other_segments_or_far_apart_are_separate_references():
 
 
 def test_a_bare_masculine_role_noun_is_not_counted_and_source_words_never_are():
-    evidence = [_ev("1", 0, 10, "masc", "masculine noun form"), _ev("1", 0, 3, "fem", "gendered noun", "source"),
+    evidence = [_ev("1", 0, 10, "masc", "masculine noun form"),
+                _ev("1", 0, 3, "fem", "gendered noun", "source"),
                 _ev("2", 0, 5, "neutral", "personal pronoun")]
     assert estimate_checked(evidence) == 0
 
@@ -122,5 +123,6 @@ def test_signatures_differ_in_settings_but_not_in_input():
     a = {"tool": "gendertrace 0.1.0", "rules": "aa", "min_confidence": 0.5, "input": "a.tsv", "documents": 3}
     b = {"tool": "gendertrace 0.1.0", "rules": "bb", "min_confidence": 0.6, "input": "b.tsv", "documents": 4,
          "src": "es:x"}
-    assert signature_differences(a, b) == [("min_confidence", 0.5, 0.6), ("rules", "aa", "bb"), ("src", None, "es:x")]
+    assert signature_differences(a, b) == [("min_confidence", 0.5, 0.6), ("rules", "aa", "bb"),
+                                           ("src", None, "es:x")]
     assert signature_differences(a, dict(a, input="elsewhere.tsv")) == []

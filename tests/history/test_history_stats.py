@@ -16,11 +16,12 @@ from gendertrace.history.stats import (
     wilson_interval,
 )
 
-# ---------------------------------------------------------------------------------------------------------------
+# ---------------------------------------------------------------------------------------------------------
 # Wilson
 
 
-@pytest.mark.parametrize(("successes", "n"), [(81, 263), (15, 148), (0, 20), (1, 29), (29, 29), (3, 7), (50, 100)])
+@pytest.mark.parametrize(("successes", "n"),
+                         [(81, 263), (15, 148), (0, 20), (1, 29), (29, 29), (3, 7), (50, 100)])
 def test_wilson_interval_matches_statsmodels(successes, n):
     # External check: statsmodels' proportion_confint(method="wilson").
     from statsmodels.stats.proportion import proportion_confint
@@ -55,7 +56,7 @@ def test_wilson_interval_rejects_more_successes_than_trials():
         wilson_interval(5, 4)
 
 
-# ---------------------------------------------------------------------------------------------------------------
+# ---------------------------------------------------------------------------------------------------------
 # sacrebleu's significance code run on the same per-document statistics
 
 
@@ -91,8 +92,8 @@ def _random_counts(rng, n_docs: int, low: int = 50, high: int = 500, skew: float
 
 def _sacrebleu_inputs(a, b):
     metric = RateMetric()
-    hyps_a = [f"{c} {n}" for c, n in zip(*a)]
-    hyps_b = [f"{c} {n}" for c, n in zip(*b)]
+    hyps_a = [f"{c} {n}" for c, n in zip(*a, strict=True)]
+    hyps_b = [f"{c} {n}" for c, n in zip(*b, strict=True)]
     bl_stats = metric._extract_corpus_statistics(hyps_a, None)
     baseline = {"rate": (bl_stats, Result(metric._aggregate_and_compute(bl_stats).score))}
     return metric, baseline, hyps_b
@@ -153,7 +154,7 @@ def test_approximate_randomization_is_reproducible_with_a_seed():
     assert other.at_least != first.at_least  # another seed, other swaps
 
 
-# ---------------------------------------------------------------------------------------------------------------
+# ---------------------------------------------------------------------------------------------------------
 # Bootstrap over documents
 
 
@@ -211,7 +212,7 @@ def test_paired_runs_must_cover_the_same_documents():
         paired_bootstrap(([1, 2], [2, 2]), ([1], [2]))
 
 
-# ---------------------------------------------------------------------------------------------------------------
+# ---------------------------------------------------------------------------------------------------------
 # The gender gap
 
 

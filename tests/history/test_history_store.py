@@ -68,7 +68,7 @@ def test_default_location_is_a_sqlite_file_under_the_current_folder(tmp_path, mo
     assert database_url("postgresql+psycopg://u@/db") == "postgresql+psycopg://u@/db"
 
 
-# ---------------------------------------------------------------------------------------------------------------
+# ---------------------------------------------------------------------------------------------------------
 # Two writers at once, and a writer killed half-way
 
 WRITER = textwrap.dedent("""
@@ -90,12 +90,13 @@ WRITER = textwrap.dedent("""
 """)
 
 
-def _writer(tmp_path: Path, url: str, results: Path, version: str, pause: float) -> tuple[subprocess.Popen, Path]:
+def _writer(tmp_path: Path, url: str, results: Path, version: str,
+            pause: float) -> tuple[subprocess.Popen, Path]:
     script = tmp_path / "writer.py"
     script.write_text(WRITER, encoding="utf-8")
     marker = tmp_path / f"started-{version}"
-    proc = subprocess.Popen([sys.executable, str(script), url, str(results), version, str(marker), str(pause)],
-                            stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True)
+    args = [sys.executable, str(script), url, str(results), version, str(marker), str(pause)]
+    proc = subprocess.Popen(args, stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True)
     return proc, marker
 
 
@@ -112,9 +113,9 @@ def _wait_for(path: Path, proc: subprocess.Popen, timeout: float = 30.0) -> None
 def test_two_processes_recording_at_once_both_land(store_url, tmp_path):
     # 1,200 documents: three batches of document rows, each followed by a pause, so the writers overlap.
     results = write_results(tmp_path / "big.jsonl", simple_docs([(3, 4)] * 1200))
-    HistoryStore(store_url).close()  # the schema exists before the race, as in a team's store
-    first, m1 = _writer(tmp_path, store_url, results, "1", 0.3)
-    second, m2 = _writer(tmp_path, store_url, results, "2", 0.3)
+    # The store does not exist yet: the two writers also race to create its schema.
+    first, m1 = _writer(tmp_path, store_url, results, "1", 0.2)
+    second, m2 = _writer(tmp_path, store_url, results, "2", 0.2)
     outs = [p.communicate(timeout=60) for p in (first, second)]
     assert [p.returncode for p in (first, second)] == [0, 0], outs
     assert m1.exists() and m2.exists()
@@ -151,7 +152,7 @@ def test_a_writer_killed_mid_record_leaves_the_earlier_runs_intact(store_url, tm
         assert [r.name for r in store.runs()] == ["lumen:1", "lumen:2"]
 
 
-# ---------------------------------------------------------------------------------------------------------------
+# ---------------------------------------------------------------------------------------------------------
 # Schema versions
 
 
@@ -160,7 +161,8 @@ def _version_1_store(url: str) -> None:
     engine = sa.create_engine(url)
     serial = "INTEGER PRIMARY KEY AUTOINCREMENT" if engine.dialect.name == "sqlite" else "SERIAL PRIMARY KEY"
     signature = ('{"documents": 2, "input": "batch.tsv", "min_confidence": 0.5, "rules": "0a1b2c3d4e5f", '
-                 '"src": "es:spacy:es_model==1.0", "tgt": "en:spacy:en_model==1.0", "tool": "gendertrace 0.1.0"}')
+                 '"src": "es:spacy:es_model==1.0", "tgt": "en:spacy:en_model==1.0", '
+                 '"tool": "gendertrace 0.1.0"}')
     with engine.begin() as conn:
         for ddl in (
             "CREATE TABLE schema_version (version INTEGER PRIMARY KEY, applied_at VARCHAR(40) NOT NULL)",
@@ -169,25 +171,28 @@ def _version_1_store(url: str) -> None:
             "documents INTEGER NOT NULL, checked INTEGER NOT NULL, consistent INTEGER NOT NULL, "
             "CONSTRAINT uq_runs_engine_version UNIQUE (engine, version))",
             "CREATE TABLE run_documents (run_id INTEGER NOT NULL REFERENCES runs(id) ON DELETE CASCADE, "
-            "position INTEGER NOT NULL, doc_id TEXT NOT NULL, segments INTEGER NOT NULL, entities INTEGER NOT NULL, "
+            "position INTEGER NOT NULL, doc_id TEXT NOT NULL, segments INTEGER NOT NULL, "
+            "entities INTEGER NOT NULL, "
             "target_references INTEGER NOT NULL, checked INTEGER NOT NULL, consistent INTEGER NOT NULL, "
             "contradiction INTEGER NOT NULL, inconsistency INTEGER NOT NULL, assumption INTEGER NOT NULL, "
             "skipped TEXT NOT NULL, PRIMARY KEY (run_id, position))",
-            f"CREATE TABLE run_findings (id {serial}, run_id INTEGER NOT NULL REFERENCES runs(id) ON DELETE CASCADE, "
-            "doc_id TEXT NOT NULL, kind VARCHAR(20) NOT NULL, seg_id TEXT NOT NULL, start_char INTEGER NOT NULL, "
+            f"CREATE TABLE run_findings (id {serial}, "
+            "run_id INTEGER NOT NULL REFERENCES runs(id) ON DELETE CASCADE, "
+            "doc_id TEXT NOT NULL, kind VARCHAR(20) NOT NULL, seg_id TEXT NOT NULL, "
+            "start_char INTEGER NOT NULL, "
             "end_char INTEGER NOT NULL, text TEXT NOT NULL, expected VARCHAR(10), found VARCHAR(10), "
             "entity TEXT NOT NULL, confidence FLOAT NOT NULL)",
         ):
             conn.execute(sa.text(ddl))
         conn.execute(sa.text("INSERT INTO schema_version VALUES (1, '2024-01-01T00:00:00+00:00')"))
-        conn.execute(sa.text("INSERT INTO runs (engine, version, recorded_at, results_path, signature, documents, "
-                             "checked, consistent) VALUES ('lumen', '1', '2024-01-01T00:00:00+00:00', 'r.jsonl', "
-                             ":sig, 2, 7, 6)"), {"sig": signature})
+        conn.execute(sa.text("INSERT INTO runs (engine, version, recorded_at, results_path, signature, "
+                             "documents, checked, consistent) VALUES ('lumen', '1', "
+                             "'2024-01-01T00:00:00+00:00', 'r.jsonl', :sig, 2, 7, 6)"), {"sig": signature})
         conn.execute(sa.text("INSERT INTO run_documents VALUES (1, 0, 'd000', 3, 1, 5, 5, 4, 1, 0, 0, ''), "
                              "(1, 1, 'd001', 3, 1, 2, 2, 2, 0, 0, 0, '')"))
-        conn.execute(sa.text("INSERT INTO run_findings (run_id, doc_id, kind, seg_id, start_char, end_char, text, "
-                             "expected, found, entity, confidence) VALUES (1, 'd000', 'contradiction', '2', 0, 2, "
-                             "'he', 'fem', 'masc', 'E1', 0.8)"))
+        conn.execute(sa.text("INSERT INTO run_findings (run_id, doc_id, kind, seg_id, start_char, end_char, "
+                             "text, expected, found, entity, confidence) VALUES (1, 'd000', 'contradiction', "
+                             "'2', 0, 2, 'he', 'fem', 'masc', 'E1', 0.8)"))
     engine.dispose()
 
 
@@ -197,16 +202,19 @@ def test_a_version_1_store_is_migrated_to_the_current_schema(store_url, tmp_path
     with HistoryStore(store_url) as store:
         assert store.schema_version() == SCHEMA_VERSION == 2
         (old,) = store.runs()
-        assert (old.name, old.checked, old.consistent, old.has_entities, old.has_texts) == ("lumen:1", 7, 6, False,
-                                                                                           False)
+        assert (old.name, old.checked, old.consistent) == ("lumen:1", 7, 6)
+        assert (old.has_entities, old.has_texts) == (False, False)
         _, back = store.load("lumen", "1")
-        assert [(d.doc_id, d.consistent, d.checked) for d in back.documents] == [("d000", 4, 5), ("d001", 2, 2)]
+        assert [(d.doc_id, d.consistent, d.checked) for d in back.documents] == [("d000", 4, 5),
+                                                                                 ("d001", 2, 2)]
         assert [(f.kind, f.text) for f in back.findings] == [("contradiction", "he")]
         with store.engine.connect() as conn:
             row = conn.execute(sa.text("SELECT tool, rules, src_pipeline, thresholds FROM runs")).one()
-            versions = conn.execute(sa.text("SELECT version FROM schema_version ORDER BY version")).scalars().all()
+            versions = conn.execute(sa.text("SELECT version FROM schema_version ORDER BY version")
+                                    ).scalars().all()
         # The signature's parts were copied into the new columns.
-        assert tuple(row) == ("gendertrace 0.1.0", "0a1b2c3d4e5f", "es:spacy:es_model==1.0", '{"min_confidence": 0.5}')
+        assert tuple(row) == ("gendertrace 0.1.0", "0a1b2c3d4e5f", "es:spacy:es_model==1.0",
+                              '{"min_confidence": 0.5}')
         assert versions == [1, 2]
         # New runs go in beside the migrated one, with the per-entity rows version 2 added.
         store.record(_run(tmp_path, "new", simple_docs([(4, 5), (2, 2)], prefix="d")), "lumen", "2")

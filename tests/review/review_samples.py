@@ -5,7 +5,8 @@ from __future__ import annotations
 import json
 from pathlib import Path
 
-# XLIFF 1.2 (XLIFF 1.2 specification: <file original>, <trans-unit>, inline <g>, <x>, <bpt>, <ept>, <ph>, <mrk>).
+# XLIFF 1.2 (XLIFF 1.2 specification: <file original>, <trans-unit>, inline <g>, <x>, <bpt>, <ept>, <ph>,
+# <mrk>).
 # The second <file> is laid out on one line on purpose; the first has a header note, a group, an alt-trans, a
 # note of its own and a unit without a target.
 XLIFF12 = """<?xml version="1.0" encoding="UTF-8"?>
@@ -75,7 +76,7 @@ XLIFF20 = """<?xml version="1.0" encoding="UTF-8"?>
     </unit>
   </file>
 </xliff>
-"""
+"""  # noqa: E501
 
 # The same shape with the XLIFF namespace bound to a prefix: new elements must use it too.
 XLIFF20_PREFIXED = """<?xml version="1.0" encoding="UTF-8"?>
@@ -128,9 +129,9 @@ def evidence(side: str, seg_id: str, start: int, end: int, text: str, gender: st
             "kind": kind, "weight": 0.7, "rule": "predicative with copula"}
 
 
-def finding(seg_id: str, start: int, end: int, text: str, kind: str = "contradiction", expected: str | None = "fem",
-            found: str | None = "masc", confidence: float = 0.8, entity: str = "E1", message: str = "",
-            evidence_items: list[dict] | None = None) -> dict:
+def finding(seg_id: str, start: int, end: int, text: str, kind: str = "contradiction",
+            expected: str | None = "fem", found: str | None = "masc", confidence: float = 0.8,
+            entity: str = "E1", message: str = "", evidence_items: list[dict] | None = None) -> dict:
     return {"kind": kind, "seg_id": seg_id, "start": start, "end": end, "text": text, "expected": expected,
             "found": found, "entity": entity, "confidence": confidence,
             "message": message or f"'{text}' contradicts the evidence", "evidence": evidence_items or []}
@@ -140,8 +141,9 @@ def result(doc_id: str, findings: list[dict], checked: int = 2, consistent: int 
            src_lang: str = "es", tgt_lang: str = "en", labels: dict[str, str] | None = None) -> dict:
     counts = {k: sum(1 for f in findings if f["kind"] == k) for k in ("contradiction", "inconsistency",
                                                                          "assumption")}
+    labels = labels or {"E1": "Ilune Garaikoa"}
     entities = [{"id": k, "label": v, "gender": None, "confidence": 0.9, "source_mentions": [],
-                 "target_mentions": [], "evidence": []} for k, v in (labels or {"E1": "Ilune Garaikoa"}).items()]
+                 "target_mentions": [], "evidence": []} for k, v in labels.items()]
     return {"doc_id": doc_id, "src_lang": src_lang, "tgt_lang": tgt_lang, "entities": entities,
             "findings": findings, "stats": {"segments": segments, "entities": len(entities),
                                             "target_references": checked + 1, "checked": checked,
@@ -162,7 +164,8 @@ def write_tsv(path: Path, rows: list[tuple[str, str, str, str]]) -> Path:
 # A two-document TSV set and results that flag words in it. "brisa" has a contradiction with evidence on both
 # sides, an assumption and an inconsistency; "mirador" has none.
 TSV_ROWS = [
-    ("brisa", "1", "La piloto Ilune Garaikoa aterrizó en Berrenda.", "Pilot Ilune Garaikoa landed in Berrenda."),
+    ("brisa", "1", "La piloto Ilune Garaikoa aterrizó en Berrenda.",
+     "Pilot Ilune Garaikoa landed in Berrenda."),
     ("brisa", "2", "Estaba cansada, pero sonrió.", "He was tired, but smiled."),
     ("brisa", "3", "El médico llegó tarde.", "The doctor arrived late; he apologised and she left."),
     ("mirador", "1", "La guía abrió el mirador.", "The guide opened the viewpoint."),
@@ -178,7 +181,8 @@ def tsv_results() -> list[dict]:
                          entity="E2", message="'he' makes the doctor masc; nothing in the source says so")
     inconsistency = finding("3", 43, 46, "she", kind="inconsistency", expected=None, found="fem",
                             confidence=0.65, entity="E2",
-                            evidence_items=[evidence("target", "3", 25, 27, "he", gender="masc", kind="pronoun")])
+                            evidence_items=[evidence("target", "3", 25, 27, "he", gender="masc",
+                                                     kind="pronoun")])
     return [
         result("brisa", [contradiction, assumption, inconsistency], checked=3, consistent=1, segments=3,
                labels={"E1": "Ilune Garaikoa", "E2": "médico"}),

@@ -301,6 +301,9 @@ def _pick_antecedent(m, ms, cl, parses, use_gender):
             continue
         if not _compatible(cl.members(c.id), [m], use_gender):
             continue
+        # A clitic that may stand for a thing joins a person only where the person's known gender matches it.
+        if use_gender and not m.animate and m.gender not in _genders(cl.members(c.id)):
+            continue
         s = _salience(c, m)
         if m.pron_type == "possessive" and c.seg == m.seg and c.clause == m.clause and c.role in ("nsubj", "nsubj:pass"):
             s += 0.4  # possessives lean to the subject of their own clause

@@ -77,7 +77,7 @@ def detect_findings(
     min_confidence: float = 0.5,
     target_chain_of: dict[str, str] | None = None,
     segment_evidence: Sequence[Sequence[EvidenceItem]] | None = None,
-) -> tuple[list[Finding], DocumentStats]:
+) -> tuple[list[Finding], DocumentStats, dict[str, tuple[int, int]]]:
     """Check every gendered target reference of every entity against the rest of the document's evidence.
 
     Each reference is judged leave-one-out: against the source evidence when that alone is confident, else
@@ -86,9 +86,11 @@ def detect_findings(
     speaks. Where neither settles it, a source segment whose person words all have one gender speaks for the
     target words of that segment (less surely: the word may be about someone the segment does not name). An
     entity whose source is silent and whose target commits to one gender gets one assumption.
+    Returns the findings, the document's statistics, and per entity id its (checked, consistent) counts.
     """
     findings: list[Finding] = []
     total_refs = checked = consistent = 0
+    per_entity: dict[str, tuple[int, int]] = {}
     # The target's own chains, where each attachment was certain, pool evidence across entities: a target
     # pronoun tied by alignment to one source mention is still about the person its sentence calls "she".
     chain_refs: dict[str, list[Reference]] = {}
@@ -118,6 +120,7 @@ def detect_findings(
             return link.confidence if link else certainty.get(r.mention.id, 1.0)
 
         judged = 0
+        consistent_before = consistent
         for r in ordered:
             if source_verdict and source_verdict.confidence >= max(min_confidence, SOURCE_DECISIVE):
                 verdict, kind, support = source_verdict, "contradiction", source_ev
@@ -151,6 +154,7 @@ def detect_findings(
                 continue
             expected = verdict.gender if kind == "contradiction" else None
             findings.append(_finding(kind, r, expected, e, conf, support, seg_ids))
+        per_entity[e.id] = (judged, consistent - consistent_before)
         if not source_ev and judged == 0:
             r = ordered[0]
             findings.append(_finding("assumption", r, None, e, 0.5 * reach(r), (), seg_ids))
@@ -160,7 +164,7 @@ def detect_findings(
         segments=len(target_texts), entities=len(entities), target_references=total_refs, checked=checked,
         consistent=consistent, findings=counts,
     )
-    return findings, stats
+    return findings, stats, per_entity
 
 
 def _unmarked_only(r: Reference) -> bool:

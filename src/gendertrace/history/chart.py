@@ -62,54 +62,67 @@ def version_points(store: HistoryStore, engines: Sequence[str] | None = None, sa
     return points
 
 
-def render_png(points: Sequence[VersionPoint], title: str = "") -> bytes:
-    import matplotlib
+def render_png(points: Sequence[VersionPoint], title: str = "", columns: int = 5) -> bytes:
+    """One panel pair per engine (rate with its band above, gap below), at most COLUMNS engines a row."""
+    import math
 
-    matplotlib.use("Agg")
+    import matplotlib
+    from matplotlib.backends.backend_agg import FigureCanvasAgg
     from matplotlib.figure import Figure
 
-    versions: list[str] = []
-    for p in points:
-        if p.version not in versions:
-            versions.append(p.version)
-    x_of = {v: k for k, v in enumerate(versions)}
     engines = list(dict.fromkeys(p.engine for p in points))
-    fig = Figure(figsize=(8.5, 6.2), dpi=110)
-    top, bottom = fig.subplots(2, 1, sharex=True, gridspec_kw={"height_ratios": [3, 2]})
-    colours = matplotlib.colormaps["tab10"]
+    cols = min(columns, len(engines))
+    rows = math.ceil(len(engines) / cols)
+    fig = Figure(figsize=(max(6.0, 2.9 * cols), 5.2 * rows), dpi=110)
+    FigureCanvasAgg(fig)  # the Agg canvas, without switching the backend of a caller's pyplot
+    grid = fig.add_gridspec(2 * rows, cols, height_ratios=[3, 2] * rows)
+    colour = matplotlib.colormaps["tab10"](0)
     for k, engine in enumerate(engines):
-        pts = [p for p in points if p.engine == engine and p.rate is not None]
-        if not pts:
-            continue
-        colour = colours(k % 10)
-        xs = [x_of[p.version] for p in pts]
-        top.plot(xs, [p.rate for p in pts], marker="o", color=colour, label=engine)
-        banded = [(x, p.bootstrap) for x, p in zip(xs, pts) if p.bootstrap is not None]
+        r, c = divmod(k, cols)
+        top = fig.add_subplot(grid[2 * r, c])
+        bottom = fig.add_subplot(grid[2 * r + 1, c], sharex=top)
+        pts = [p for p in points if p.engine == engine]
+        xs = list(range(len(pts)))
+        rated = [(x, p) for x, p in zip(xs, pts, strict=True) if p.rate is not None]
+        if rated:
+            top.plot([x for x, _ in rated], [p.rate for _, p in rated], marker="o", color=colour)
+        banded = [(x, p.bootstrap) for x, p in rated if p.bootstrap is not None]
         if banded:
             top.fill_between([x for x, _ in banded], [b.low for _, b in banded], [b.high for _, b in banded],
-                             color=colour, alpha=0.15, linewidth=0)
-        gaps = [(x + 0.04 * (k - (len(engines) - 1) / 2), p.gap) for x, p in zip(xs, pts)
+                             color=colour, alpha=0.18, linewidth=0, label="95% bootstrap (documents)")
+        walled = [(x, p) for x, p in rated if p.wilson is not None]
+        if walled:
+            top.errorbar([x for x, _ in walled], [p.rate for _, p in walled],
+                         yerr=[[p.rate - p.wilson.low for _, p in walled],
+                               [p.wilson.high - p.rate for _, p in walled]],
+                         fmt="none", ecolor="black", elinewidth=0.8, capsize=3, label="95% Wilson")
+        top.set_ylim(0, 1.02)
+        top.set_title(engine, fontsize=10)
+        top.grid(True, alpha=0.3)
+        top.tick_params(labelbottom=False)
+        gaps = [(x, p.gap) for x, p in zip(xs, pts, strict=True)
                 if p.gap is not None and p.gap.gap is not None]
         if gaps:
             ys = [g.gap for _, g in gaps]
             lo = [g.gap - g.interval.low if g.interval else 0.0 for _, g in gaps]
             hi = [g.interval.high - g.gap if g.interval else 0.0 for _, g in gaps]
-            bottom.errorbar([x for x, _ in gaps], ys, yerr=[lo, hi], marker="s", color=colour, capsize=3,
-                            label=engine)
-    top.set_ylabel("consistency rate")
-    top.set_ylim(0, 1.02)
-    top.grid(True, alpha=0.3)
-    top.set_title(title or "Consistency rate by engine version (band: 95% bootstrap over documents)", fontsize=10)
-    top.legend(fontsize=8, loc="lower right")
-    bottom.axhline(0.0, color="grey", linewidth=0.8)
-    bottom.set_ylabel("gap: feminine - masculine")
-    bottom.set_xlabel("engine version (in order of recording)")
-    bottom.grid(True, alpha=0.3)
-    bottom.set_title("Rate on entities with feminine minus masculine source evidence (bars: 95% bootstrap)",
-                     fontsize=10)
-    bottom.set_xticks(range(len(versions)))
-    bottom.set_xticklabels(versions)
-    bottom.set_xlim(-0.5, len(versions) - 0.5)
+            bottom.errorbar([x for x, _ in gaps], ys, yerr=[lo, hi], marker="s", color="tab:purple",
+                            capsize=3)
+        bottom.axhline(0.0, color="grey", linewidth=0.8)
+        bottom.set_ylim(-1.05, 1.05)
+        bottom.grid(True, alpha=0.3)
+        bottom.set_xticks(xs)
+        bottom.set_xticklabels([p.version for p in pts])
+        bottom.set_xlim(-0.5, len(pts) - 0.5)
+        if c == 0:
+            top.set_ylabel("consistency rate")
+            bottom.set_ylabel("gap: fem - masc")
+        if k == 0:
+            top.legend(fontsize=7, loc="lower right")
+    fig.suptitle(title or "Consistency rate by engine version, and the feminine minus masculine gap",
+                 fontsize=11)
+    fig.supxlabel("engine version (in order of recording); gap bars: 95% bootstrap over documents",
+                  fontsize=9)
     fig.tight_layout()
     buf = io.BytesIO()
     fig.savefig(buf, format="png")
@@ -128,7 +141,8 @@ def render_html(points: Sequence[VersionPoint], png: bytes, title: str = "") -> 
         g = p.gap
         rows.append(
             "<tr>" + "".join(f"<td>{html.escape(str(v))}</td>" for v in (
-                p.engine, p.version, p.recorded_at[:19], p.documents, f"{p.consistent}/{p.checked}", _cell(p.rate),
+                p.engine, p.version, p.recorded_at[:19], p.documents, f"{p.consistent}/{p.checked}",
+                _cell(p.rate),
                 p.wilson.fmt() if p.wilson else "n/a", p.bootstrap.fmt() if p.bootstrap else "n/a",
                 _cell(g.fem_rate) if g else "n/a", _cell(g.masc_rate) if g else "n/a",
                 _cell(g.gap, True) if g else "n/a", g.interval.fmt(3, True) if g and g.interval else "n/a",
@@ -147,6 +161,7 @@ body {{ font-family: sans-serif; margin: 2em; color: #222; }}
 table {{ border-collapse: collapse; font-size: 0.9em; }}
 th, td {{ border: 1px solid #ccc; padding: 0.3em 0.6em; text-align: right; }}
 th {{ background: #f3f3f3; }}
+img {{ max-width: 100%; height: auto; }}
 td:first-child, td:nth-child(2) {{ text-align: left; }}
 </style>
 </head>

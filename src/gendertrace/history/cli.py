@@ -7,17 +7,14 @@ import sys
 import click
 
 from gendertrace.errors import GendertraceError
-from gendertrace.history.compare import (
+from gendertrace.history.defaults import (
     DEFAULT_ALPHA,
+    DEFAULT_DB,
     DEFAULT_SAMPLES,
     DEFAULT_SEED,
     DEFAULT_THRESHOLD,
     DEFAULT_TRIALS,
-    compare_runs,
-    describe_differences,
 )
-from gendertrace.history.stats import wilson_interval
-from gendertrace.history.store import DEFAULT_DB, HistoryStore, parse_run_name
 
 # Exit status of a failed gate, the same as `gendertrace score --fail-under`.
 GATE_EXIT = 3
@@ -35,9 +32,12 @@ def _db_option(f):
     )(f)
 
 
-def _open(db: str | None) -> HistoryStore:
+def _open(db: str | None, create: bool = False):
+    """The store; only `record` creates one, the other commands need it to exist."""
+    from gendertrace.history.store import HistoryStore
+
     try:
-        return HistoryStore(db)
+        return HistoryStore(db, create=create)
     except GendertraceError as exc:
         _fail(exc)
         raise  # unreachable: _fail raises
@@ -60,7 +60,7 @@ def history() -> None:
 @click.option("--engine", required=True, help="Engine name (no ':'), e.g. the MT system and direction.")
 @click.option("--version", "version", required=True, help="Engine version, e.g. 2024-06 or v2.")
 @click.option("--input", "input_path", default=None, type=click.Path(exists=True, dir_okay=False),
-              help="The input the results were scored from: keeps the targets and references for BLEU, chrF, TER.")
+              help="The input the results were scored from: keeps the texts for BLEU, chrF and TER.")
 @click.option("--format", "fmt", type=click.Choice(["tsv", "csv", "jsonl"]), default=None,
               help="Format of --input; by default taken from its extension.")
 @click.option("--replace", is_flag=True, help="Record again a run of this engine and version already stored.")
@@ -74,17 +74,19 @@ def record(results, engine, version, input_path, fmt, replace, db):
     from gendertrace.history.runs import load_run
 
     if ":" in engine or not engine.strip():
-        raise click.BadParameter(f"{engine!r}: an engine name is non-empty and holds no ':'", param_hint="--engine")
+        raise click.BadParameter(f"{engine!r}: an engine name is non-empty and holds no ':'",
+                                 param_hint="--engine")
     try:
         run = load_run(results, input_path, fmt)
-        with _open(db) as store:
+        with _open(db, create=True) as store:
             info = store.record(run, engine, version, replace=replace)
             where = store.display_url
     except GendertraceError as exc:
         _fail(exc)
     rate = "n/a" if info.rate is None else f"{info.rate:.3f}"
-    click.echo(f"recorded {info.name}: {info.documents} documents, {info.consistent}/{info.checked} consistent "
-               f"(rate {rate}){', with texts' if info.has_texts else ''} in {where}")
+    texts = ", with texts" if info.has_texts else ""
+    click.echo(f"recorded {info.name}: {info.documents} documents, {info.consistent}/{info.checked} "
+               f"consistent (rate {rate}){texts} in {where}")
     for note in run.notes:
         click.echo(f"note: {note}")
 
@@ -94,6 +96,8 @@ def record(results, engine, version, input_path, fmt, replace, db):
 @_db_option
 def list_runs(engine, db):
     """A table of the recorded runs, oldest first."""
+    from gendertrace.history.stats import wilson_interval
+
     try:
         with _open(db) as store:
             runs = store.runs(engine)
@@ -102,29 +106,32 @@ def list_runs(engine, db):
     if not runs:
         click.echo("no runs recorded" + (f" for engine {engine}" if engine else ""))
         return
-    header = ("run", "recorded (UTC)", "docs", "consistent/checked", "rate", "95% Wilson", "texts", "tool", "rules")
+    header = ("run", "recorded (UTC)", "docs", "consistent/checked", "rate", "95% Wilson", "texts", "tool",
+              "rules")
     rows = []
     for r in runs:
         w = wilson_interval(r.consistent, r.checked)
-        rows.append((r.name, r.recorded_at[:19].replace("T", " "), str(r.documents), f"{r.consistent}/{r.checked}",
+        rows.append((r.name, r.recorded_at[:19].replace("T", " "), str(r.documents),
+                     f"{r.consistent}/{r.checked}",
                      "n/a" if r.rate is None else f"{r.rate:.3f}", w.fmt() if w else "n/a",
                      "yes" if r.has_texts else "no", str(r.signature.get("tool", "")),
                      str(r.signature.get("rules", ""))))
     widths = [max(len(h), *(len(row[k]) for row in rows)) for k, h in enumerate(header)]
-    click.echo("  ".join(h.ljust(w) for h, w in zip(header, widths)).rstrip())
+    click.echo("  ".join(h.ljust(w) for h, w in zip(header, widths, strict=True)).rstrip())
     click.echo("  ".join("-" * w for w in widths))
     for row in rows:
-        click.echo("  ".join(c.ljust(w) for c, w in zip(row, widths)).rstrip())
+        click.echo("  ".join(c.ljust(w) for c, w in zip(row, widths, strict=True)).rstrip())
 
 
 @history.command()
 @click.argument("run_a", metavar="A")
 @click.argument("run_b", metavar="B")
 @click.option("--force", is_flag=True,
-              help="Compare runs whose signatures differ (tool, rules, pipelines, thresholds), with a warning.")
+              help="Compare even when the signatures differ (tool, rules, pipelines, thresholds), warning.")
 @click.option("--fail-on-regression", is_flag=True,
-              help=f"Exit with status {GATE_EXIT} when B is worse than A by more than the threshold with p < alpha.")
-@click.option("--regression-threshold", type=click.FloatRange(0, 1), default=DEFAULT_THRESHOLD, show_default=True,
+              help=f"Exit with status {GATE_EXIT} when B is significantly worse than A (see the next two).")
+@click.option("--regression-threshold", type=click.FloatRange(0, 1), default=DEFAULT_THRESHOLD,
+              show_default=True,
               help="Smallest drop of the consistency rate (absolute) that counts as a regression.")
 @click.option("--alpha", type=click.FloatRange(0, 1, min_open=True), default=DEFAULT_ALPHA, show_default=True,
               help="Significance level of the gate (approximate randomization p-value).")
@@ -136,13 +143,16 @@ def list_runs(engine, db):
 @click.option("--metrics/--no-metrics", default=True, show_default=True,
               help="BLEU, chrF and TER (when both runs were recorded with references).")
 @_db_option
-def compare(run_a, run_b, force, fail_on_regression, regression_threshold, alpha, samples, trials, seed, metrics,
-            db):
+def compare(run_a, run_b, force, fail_on_regression, regression_threshold, alpha, samples, trials, seed,
+            metrics, db):
     """Compare run B (the newer, e.g. demo:v2) against run A (the baseline, e.g. demo:v1).
 
     Runs are named ENGINE:VERSION and must cover the same documents. Runs scored with different settings
     are refused unless --force is given.
     """
+    from gendertrace.history.compare import compare_runs, describe_differences
+    from gendertrace.history.store import parse_run_name
+
     try:
         ea, va = parse_run_name(run_a)
         eb, vb = parse_run_name(run_b)
@@ -166,7 +176,8 @@ def compare(run_a, run_b, force, fail_on_regression, regression_threshold, alpha
 @history.command()
 @click.option("--out", "-o", required=True, type=click.Path(dir_okay=False),
               help="FILE.png, or FILE.html (one self-contained page).")
-@click.option("--engine", "engines", multiple=True, help="Engine to chart (repeatable; default: every engine).")
+@click.option("--engine", "engines", multiple=True,
+              help="Engine to chart (repeatable; default: every engine).")
 @click.option("--title", default="", help="Chart title.")
 @click.option("--samples", type=click.IntRange(100), default=DEFAULT_SAMPLES, show_default=True,
               help="Bootstrap resamples for the bands.")

@@ -18,6 +18,14 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from gendertrace.history.defaults import (
+    DEFAULT_ALPHA,
+    DEFAULT_SAMPLES,
+    DEFAULT_SEED,
+    DEFAULT_THRESHOLD,
+    DEFAULT_TRIALS,
+    FEW_DOCUMENTS,
+)
 from gendertrace.history.runs import RunData, comparable_signature, signature_differences
 from gendertrace.history.stats import (
     BootstrapRate,
@@ -33,12 +41,6 @@ from gendertrace.history.stats import (
     wilson_interval,
 )
 from gendertrace.history.store import HistoryError, RunInfo
-
-DEFAULT_THRESHOLD = 0.01
-DEFAULT_ALPHA = 0.05
-DEFAULT_SAMPLES = 1000
-DEFAULT_TRIALS = 10000
-DEFAULT_SEED = 13
 
 
 @dataclass(frozen=True)
@@ -112,7 +114,8 @@ def check_documents(a: RunInfo, run_a: RunData, b: RunInfo, run_b: RunData) -> N
             parts.append(f"{a.name} lacks {len(only_b)}: {_names(only_b)}")
         if only_a:
             parts.append(f"{b.name} lacks {len(only_a)}: {_names(only_a)}")
-        raise HistoryError("the runs cover different documents, so they cannot be compared; " + "; ".join(parts))
+        raise HistoryError("the runs cover different documents, so they cannot be compared; "
+                           + "; ".join(parts))
 
 
 def _names(ids: Sequence[str], most: int = 10) -> str:
@@ -124,14 +127,14 @@ def describe_differences(diffs: Sequence[tuple[str, object, object]], a: str, b:
 
 
 def compare_runs(a: RunInfo, run_a: RunData, b: RunInfo, run_b: RunData, *, force: bool = False,
-                 samples: int = DEFAULT_SAMPLES, trials: int = DEFAULT_TRIALS, seed: int | None = DEFAULT_SEED,
-                 metrics: bool = True) -> Comparison:
+                 samples: int = DEFAULT_SAMPLES, trials: int = DEFAULT_TRIALS,
+                 seed: int | None = DEFAULT_SEED, metrics: bool = True) -> Comparison:
     """Compare run B against run A (the baseline) over their common documents; see the module for refusals."""
     check_documents(a, run_a, b, run_b)
     diffs = tuple(signature_differences(a.signature, b.signature))
     if diffs and not force:
-        raise HistoryError(f"the runs were scored with different settings, so their rates are not comparable "
-                           f"(use --force to compare anyway): "
+        raise HistoryError("the runs were scored with different settings, so their rates are not comparable "
+                           "(use --force to compare anyway): "
                            + "; ".join(describe_differences(diffs, a.name, b.name)))
     docs_a = list(run_a.documents)
     by_id_b = {d.doc_id: d for d in run_b.documents}
@@ -156,8 +159,8 @@ def compare_runs(a: RunInfo, run_a: RunData, b: RunInfo, run_b: RunData, *, forc
         gap_change = paired_gap_change(ga, gb, samples, seed)
         kinds = {e.counts for e in run_a.entities + run_b.entities}
         if "estimated" in kinds:
-            gap_note = ("per-entity checked counts are estimated from each entity's target evidence "
-                        "(the results give exact counts per document only)")
+            gap_note = ("per-entity counts are estimated from target evidence (the results count checks "
+                        "per document only)")
     mt, mt_note = (None, "not computed (--no-metrics)")
     if metrics:
         mt, mt_note = mt_comparison(run_a, run_b, samples, seed)
@@ -188,7 +191,7 @@ def gap_counts(run: RunData, order: Sequence[str]) -> np.ndarray:
     return out
 
 
-# -----------------------------------------------------------------------------------------------------------
+# ---------------------------------------------------------------------------------------------------------
 # MT metrics through sacrebleu
 
 
@@ -208,7 +211,7 @@ def _sacrebleu_seed(seed: int | None):
 
 def mt_comparison(run_a: RunData, run_b: RunData, samples: int = DEFAULT_SAMPLES,
                   seed: int | None = DEFAULT_SEED) -> tuple[MTComparison | None, str]:
-    """BLEU, chrF and TER of both runs on their shared referenced segments, with sacrebleu's paired bootstrap."""
+    """BLEU, chrF and TER of both runs on their shared referenced segments, with sacrebleu's paired test."""
     if not run_a.segments or not run_b.segments:
         return None, "not computed: record both runs with --input to keep their texts"
     seg_b = {(s.doc_id, s.seg_id): s for s in run_b.segments}
@@ -243,7 +246,7 @@ def mt_comparison(run_a: RunData, run_b: RunData, samples: int = DEFAULT_SAMPLES
     return MTComparison(len(refs), tuple(lines)), note
 
 
-# -----------------------------------------------------------------------------------------------------------
+# ---------------------------------------------------------------------------------------------------------
 # Text
 
 
@@ -268,8 +271,8 @@ def signature_line(signature: dict) -> str:
 def render(c: Comparison, threshold: float = DEFAULT_THRESHOLD, alpha: float = DEFAULT_ALPHA) -> str:
     lines: list[str] = []
     if c.differences:
-        lines.append("WARNING: the runs were scored with different settings; the comparison was forced and its")
-        lines.append("WARNING: numbers mix a change of engine with a change of the checker:")
+        lines.append("WARNING: the runs were scored with different settings; the comparison was forced")
+        lines.append("WARNING: and its numbers mix a change of engine with a change of the checker:")
         lines += [f"WARNING:   {d}" for d in describe_differences(c.differences, c.a.name, c.b.name)]
         lines.append("")
     lines.append(f"A = {c.a.name}  (recorded {c.a.recorded_at[:19]})")
@@ -277,28 +280,31 @@ def render(c: Comparison, threshold: float = DEFAULT_THRESHOLD, alpha: float = D
     lines.append(f"{c.documents} documents in both runs; signature: {signature_line(c.a.signature)}")
     lines.append("")
     lines.append("consistency rate (consistent / checked gendered target references)")
-    head = f"  {'run':<4} {'consistent/checked':>18}  {'rate':>6}  {'95% Wilson':>16}  {'95% bootstrap (docs)':>20}"
-    lines.append(head)
+    lines.append(f"  {'run':<4} {'consistent/checked':>18}  {'rate':>6}  {'95% Wilson':>16}  "
+                 f"{'95% bootstrap (docs)':>20}")
     for label, r in (("A", c.rate_a), ("B", c.rate_b)):
-        lines.append(f"  {label:<4} {f'{r.consistent}/{r.checked}':>18}  {_r(r.rate):>6}  {_iv(r.wilson):>16}  "
+        counts = f"{r.consistent}/{r.checked}"
+        lines.append(f"  {label:<4} {counts:>18}  {_r(r.rate):>6}  {_iv(r.wilson):>16}  "
                      f"{_iv(r.bootstrap.interval):>20}")
     lines.append(f"  B - A {_r(c.delta, signed=True)}: 95% paired bootstrap {_iv(c.paired.interval, True)} "
                  f"({c.paired.samples} resamples of documents, seed {c.seed})")
-    lines.append(f"  approximate randomization p = {_p(c.randomization.p_value)} ({c.randomization.trials} trials); "
-                 f"paired bootstrap p = {_p(c.paired.p_value)}")
+    lines.append(f"  approximate randomization p = {_p(c.randomization.p_value)} "
+                 f"({c.randomization.trials} trials); paired bootstrap p = {_p(c.paired.p_value)}")
     lines.append("")
     lines.append("entities with feminine and with masculine source evidence")
     if c.gap_a is None or c.gap_b is None:
         lines.append(f"  {c.gap_note}")
     else:
-        lines.append(f"  {'run':<4} {'feminine':>16} {'masculine':>16}  {'gap fem - masc':>14}  {'95% bootstrap':>16}")
+        lines.append(f"  {'run':<4} {'feminine':>16} {'masculine':>16}  {'gap fem - masc':>14}  "
+                     f"{'95% bootstrap':>16}")
         for label, g in (("A", c.gap_a), ("B", c.gap_b)):
             fem = f"{_r(g.fem_rate)} ({g.fem_consistent}/{g.fem_checked})"
             masc = f"{_r(g.masc_rate)} ({g.masc_consistent}/{g.masc_checked})"
             lines.append(f"  {label:<4} {fem:>16} {masc:>16}  {_r(g.gap, signed=True):>14}  "
                          f"{_iv(g.interval, True):>16}")
         change = None if c.gap_a.gap is None or c.gap_b.gap is None else c.gap_b.gap - c.gap_a.gap
-        lines.append(f"  gap change B - A {_r(change, signed=True)}: 95% paired bootstrap {_iv(c.gap_change, True)}")
+        lines.append(f"  gap change B - A {_r(change, signed=True)}: 95% paired bootstrap "
+                     f"{_iv(c.gap_change, True)}")
         if c.gap_note:
             lines.append(f"  note: {c.gap_note}")
     lines.append("")
@@ -310,6 +316,9 @@ def render(c: Comparison, threshold: float = DEFAULT_THRESHOLD, alpha: float = D
             p = "" if m.p_value is None else f"  p = {_p(m.p_value)}"
             lines.append(f"  {m.name:<6} A {m.score_a:6.2f}  B {m.score_b:6.2f}{p}")
             lines.append(f"         {m.signature}")
+    if c.documents < FEW_DOCUMENTS:
+        lines.append(f"note: only {c.documents} documents: resampling them gives coarse intervals and "
+                     f"p-values")
     for n in c.notes:
         lines.append(f"note: {n}")
     lines.append("")

@@ -19,7 +19,8 @@ def demo_engine(direction: str) -> str:
 
 
 def record_demo(results_dir: str | Path, db: str | Path, corpus: str | Path | None = None,
-                seed: int = DEFAULT_SEED, samples: int = DEFAULT_SAMPLES, trials: int = DEFAULT_TRIALS) -> str:
+                seed: int = DEFAULT_SEED, samples: int = DEFAULT_SAMPLES,
+                trials: int = DEFAULT_TRIALS) -> str:
     """Record RESULTS_DIR/<src>-<tgt>.<v>.jsonl as runs demo-<src>-<tgt>:<v> in DB; return the comparisons.
 
     DB is a store path or SQLAlchemy URL. Each direction's earliest version is compared with each later one.
@@ -49,7 +50,8 @@ def record_demo(results_dir: str | Path, db: str | Path, corpus: str | Path | No
             info_a, data_a = store.load(engine, base)
             for _, version, _path in versions[1:]:
                 info_b, data_b = store.load(engine, version)
-                result = compare_runs(info_a, data_a, info_b, data_b, samples=samples, trials=trials, seed=seed)
+                result = compare_runs(info_a, data_a, info_b, data_b, samples=samples, trials=trials,
+                                      seed=seed)
                 sections += [f"== {engine}: {base} -> {version} ==", result.render(), ""]
         sections.append(f"runs recorded in {store.display_url}")
     return "\n".join(sections)

@@ -9,10 +9,12 @@ from gendertrace.history.store import HistoryError, HistoryStore
 TABLES: tuple[str, ...] = ("runs", "documents", "entities", "findings", "segments")
 
 
-def write_export(store: HistoryStore, out: str | Path, table: str = "documents", engine: str | None = None) -> int:
+def write_export(store: HistoryStore, out: str | Path, table: str = "documents",
+                 engine: str | None = None) -> int:
     """Write TABLE (each row named by its run's engine and version) to OUT; return the number of rows.
 
-    The format follows the extension: .csv, or .parquet (which needs pyarrow: `pip install gendertrace[parquet]`).
+    The format follows the extension: .csv, or .parquet (which needs pyarrow:
+    `pip install gendertrace[parquet]`).
     """
     out = Path(out)
     suffix = out.suffix.lower()

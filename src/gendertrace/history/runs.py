@@ -131,7 +131,8 @@ def comparable_signature(signature: Mapping[str, object]) -> dict[str, object]:
     return {k: v for k, v in signature.items() if k not in INPUT_KEYS}
 
 
-def signature_differences(a: Mapping[str, object], b: Mapping[str, object]) -> list[tuple[str, object, object]]:
+def signature_differences(a: Mapping[str, object],
+                          b: Mapping[str, object]) -> list[tuple[str, object, object]]:
     """(key, value in a, value in b) for every setting that differs; a missing key shows as None."""
     ca, cb = comparable_signature(a), comparable_signature(b)
     return [(k, ca.get(k), cb.get(k)) for k in sorted(ca.keys() | cb.keys()) if ca.get(k) != cb.get(k)]
@@ -140,7 +141,8 @@ def signature_differences(a: Mapping[str, object], b: Mapping[str, object]) -> l
 def read_signature(results_path: Path) -> dict[str, object]:
     sidecar = Path(str(results_path) + ".signature.json")
     if not sidecar.is_file():
-        raise InputError(str(sidecar), None, "no signature file beside the results (written by `gendertrace score`)")
+        raise InputError(str(sidecar), None,
+                         "no signature file beside the results (written by `gendertrace score`)")
     try:
         signature = json.loads(sidecar.read_text(encoding="utf-8"))
     except json.JSONDecodeError as exc:
@@ -153,7 +155,8 @@ def read_signature(results_path: Path) -> dict[str, object]:
     return signature
 
 
-def load_run(results_path: str | Path, input_path: str | Path | None = None, fmt: str | None = None) -> RunData:
+def load_run(results_path: str | Path, input_path: str | Path | None = None,
+             fmt: str | None = None) -> RunData:
     """Read RESULTS.jsonl, its signature sidecar and (optionally) the input's texts into a RunData."""
     results_path = Path(results_path)
     signature = read_signature(results_path)
@@ -177,7 +180,8 @@ def load_run(results_path: str | Path, input_path: str | Path | None = None, fmt
             except json.JSONDecodeError as exc:
                 raise InputError(str(results_path), line_no, f"not valid JSON: {exc.msg}") from exc
             except (KeyError, TypeError, ValueError) as exc:
-                raise InputError(str(results_path), line_no, f"not a gendertrace result: {_describe(exc)}") from exc
+                raise InputError(str(results_path), line_no,
+                                 f"not a gendertrace result: {_describe(exc)}") from exc
             if rec.doc_id in seen:
                 raise InputError(str(results_path), line_no, f"document {rec.doc_id!r} appears twice")
             seen.add(rec.doc_id)
@@ -218,7 +222,8 @@ def _document(doc: Mapping, position: int, min_conf: float
         findings=by_kind, skipped=str(doc.get("skipped", "")),
     )
     if rec.consistent > rec.checked or rec.checked < 0 or rec.consistent < 0:
-        raise ValueError(f"document {doc_id!r}: consistent {rec.consistent} is not within 0..checked {rec.checked}")
+        raise ValueError(f"document {doc_id!r}: consistent {rec.consistent} is not within "
+                         f"0..checked {rec.checked}")
     findings = [
         FindingRecord(doc_id, str(fd["kind"]), str(fd["seg_id"]), int(fd["start"]), int(fd["end"]),
                       str(fd.get("text", "")), fd.get("expected"), fd.get("found"), str(fd.get("entity", "")),
@@ -251,13 +256,15 @@ def _entity(doc_id: str, e: Mapping, flagged: int, min_conf: float) -> EntityRec
 
 def estimate_checked(evidence: Sequence[Mapping]) -> int:
     """Target references an entity's evidence implies: noun-phrase words grouped, predicate words alone."""
-    marks = sorted((ev for ev in evidence if ev.get("side") == "target" and ev.get("gender") in ("fem", "masc")),
+    marks = sorted((ev for ev in evidence
+                    if ev.get("side") == "target" and ev.get("gender") in ("fem", "masc")),
                    key=lambda ev: (_seg_key(str(ev["seg_id"])), int(ev["start"])))
     groups: list[list[Mapping]] = []
     for ev in marks:
         last = groups[-1][-1] if groups else None
         # Words of one noun phrase sit next to each other: at most one character (a space) between them.
-        if (last is not None and ev.get("rule") not in PREDICATE_RULES and last.get("rule") not in PREDICATE_RULES
+        if (last is not None and ev.get("rule") not in PREDICATE_RULES
+                and last.get("rule") not in PREDICATE_RULES
                 and last["seg_id"] == ev["seg_id"] and 0 <= int(ev["start"]) - int(last["end"]) <= 1):
             groups[-1].append(ev)
         else:

@@ -11,8 +11,8 @@ rate is a ratio of sums, so every resampled statistic is cheap: resample documen
   formula, so both can be checked against sacrebleu on the same statistics.
 - Approximate randomization (Noreen 1989; Riezler and Maxwell 2005): each document's statistics are swapped
   between the two runs with probability one half; the p-value is (c + 1) / (t + 1), c counting trials whose
-  absolute difference is at least the observed one. sacrebleu counts strictly greater ones; with rates of small
-  integer counts ties are common, and counting them keeps the test from rejecting too easily.
+  absolute difference is at least the observed one. sacrebleu counts strictly greater ones; with rates of
+  small integer counts ties are common, and counting them keeps the test from rejecting too easily.
 
 Intervals from resampling use the same order statistics as sacrebleu's `estimate_ci` (the n//40-th value
 from each end of the sorted resamples, a 95% interval).
@@ -61,7 +61,7 @@ def wilson_interval(successes: int, n: int, z: float = Z95) -> Interval | None:
 
 
 def resample_indices(n_items: int, n_samples: int, seed: int | None):
-    """Bootstrap indices, n_samples rows of n_items, in chunks; the same draws as sacrebleu's paired bootstrap."""
+    """Bootstrap indices, n_samples rows of n_items, in chunks; the draws of sacrebleu's paired bootstrap."""
     rng = np.random.default_rng(seed)
     per_chunk = max(1, _CHUNK_CELLS // max(n_items, 1))
     done = 0
@@ -110,7 +110,8 @@ def bootstrap_rate(consistent: Sequence[int], checked: Sequence[int], n_samples:
     rates = np.concatenate([_ratio(s[idx, 0].sum(1), s[idx, 1].sum(1))
                             for idx in resample_indices(len(s), n_samples, seed)])
     finite = rates[np.isfinite(rates)]
-    return BootstrapRate(observed, order_interval(rates), float(finite.mean()) if len(finite) else None, n_samples)
+    mean = float(finite.mean()) if len(finite) else None
+    return BootstrapRate(observed, order_interval(rates), mean, n_samples)
 
 
 @dataclass(frozen=True)
@@ -176,7 +177,7 @@ def approximate_randomization(a: tuple[Sequence[int], Sequence[int]], b: tuple[S
     at_least = done = 0
     while done < n_trials:
         k = min(per_chunk, n_trials - done)
-        # The same draws as sacrebleu's approximate randomization: a boolean "keep" mask per trial and document.
+        # The draws of sacrebleu's approximate randomization: a boolean "keep" mask per trial and document.
         keep = rng.integers(2, size=(k, n), dtype=bool)
         swap = ~keep
         shuf_a = keep @ sa_ + swap @ sb_

@@ -24,6 +24,7 @@ import sqlalchemy as sa
 from sqlalchemy.engine import Connection, Engine
 
 from gendertrace.errors import GendertraceError
+from gendertrace.history.defaults import DEFAULT_DB
 from gendertrace.history.runs import (
     DocumentRecord,
     EntityRecord,
@@ -35,7 +36,6 @@ from gendertrace.history.runs import (
 from gendertrace.model import FINDING_KINDS
 
 SCHEMA_VERSION = 2
-DEFAULT_DB = Path(".gendertrace") / "history.db"
 BATCH_ROWS = 500
 # Any constant will do: it only has to be the same for every process that migrates a PostgreSQL store.
 _PG_MIGRATION_LOCK = 0x67656E64
@@ -175,15 +175,26 @@ def parse_run_name(name: str) -> tuple[str, str]:
     return engine, version
 
 
-def database_url(location: str | Path | None) -> str:
-    """A SQLAlchemy URL for LOCATION: a URL as it is, a file path as a SQLite file (its folder created)."""
+def database_url(location: str | Path | None, create: bool = True) -> str:
+    """A SQLAlchemy URL for LOCATION: a URL as it is, a file path as a SQLite file.
+
+    With `create`, the file's folder is made when missing; without it, a missing file is an error.
+    """
     if location is None:
         location = DEFAULT_DB
     text = str(location)
     if "://" in text:
         return text
     path = Path(text).expanduser().resolve()
-    path.parent.mkdir(parents=True, exist_ok=True)
+    if not create:
+        if not path.is_file():
+            raise HistoryError(f"no history store at {location} (record a run first, or name one with --db)")
+    else:
+        try:
+            path.parent.mkdir(parents=True, exist_ok=True)
+        except OSError as exc:
+            raise HistoryError(f"cannot make the folder of the history store {location}: "
+                               f"{exc.strerror}") from exc
     return f"sqlite:///{path}"
 
 
@@ -210,8 +221,10 @@ def signature_columns(signature: dict) -> dict:
 class HistoryStore:
     """Recorded runs in one database; opening it creates or migrates the schema as needed."""
 
-    def __init__(self, location: str | Path | None = None, busy_timeout: float = 60.0) -> None:
-        self.url = database_url(location)
+    def __init__(self, location: str | Path | None = None, busy_timeout: float = 60.0,
+                 create: bool = True) -> None:
+        """Open (and with `create`, make) the store at LOCATION; see `database_url`."""
+        self.url = database_url(location, create)
         self.busy_timeout = busy_timeout
         try:
             self.engine = self._create_engine()
@@ -219,8 +232,9 @@ class HistoryStore:
         except sa.exc.SQLAlchemyError as exc:
             raise HistoryError(f"cannot open the history store {self.display_url}: {_short(exc)}") from exc
         except ModuleNotFoundError as exc:
+            hint = " (pip install 'gendertrace[postgres]')" if "psycopg" in str(exc.name) else ""
             raise HistoryError(f"cannot open the history store {self.display_url}: the database driver "
-                               f"{exc.name!r} is not installed") from exc
+                               f"{exc.name!r} is not installed{hint}") from exc
 
     @property
     def display_url(self) -> str:
@@ -239,7 +253,7 @@ class HistoryStore:
     def __exit__(self, *exc) -> None:
         self.close()
 
-    # -------------------------------------------------------------------------------------------------------
+    # -----------------------------------------------------------------------------------------------------
     # Connections and transactions
 
     def _create_engine(self) -> Engine:
@@ -288,7 +302,7 @@ class HistoryStore:
         with self.engine.connect() as conn, conn.begin():
             yield conn
 
-    # -------------------------------------------------------------------------------------------------------
+    # -----------------------------------------------------------------------------------------------------
     # Schema
 
     def schema_version(self) -> int:
@@ -303,13 +317,16 @@ class HistoryStore:
             version = _current_version(conn)  # again, now that this process holds the lock
             if version == 0:
                 if _has_store_tables(conn):
-                    raise HistoryError(f"{self.display_url} holds tables but no schema_version: not a history store")
+                    raise HistoryError(f"{self.display_url} holds tables but no schema_version: "
+                                       f"not a history store")
                 metadata.create_all(conn)
-                conn.execute(schema_version_table.insert(), [{"version": SCHEMA_VERSION, "applied_at": _now()}])
+                conn.execute(schema_version_table.insert(),
+                             [{"version": SCHEMA_VERSION, "applied_at": _now()}])
                 return
             if version > SCHEMA_VERSION:
-                raise HistoryError(f"the history store {self.display_url} has schema version {version}, newer than "
-                                   f"this program's {SCHEMA_VERSION}: upgrade gendertrace to use it")
+                raise HistoryError(f"the history store {self.display_url} has schema version {version}, "
+                                   f"newer than this program's {SCHEMA_VERSION}: upgrade gendertrace to use "
+                                   f"it")
         while version < SCHEMA_VERSION:
             with self._write_schema() as conn:
                 version = _current_version(conn)
@@ -319,7 +336,7 @@ class HistoryStore:
                 version += 1
                 conn.execute(schema_version_table.insert(), [{"version": version, "applied_at": _now()}])
 
-    # -------------------------------------------------------------------------------------------------------
+    # -----------------------------------------------------------------------------------------------------
     # Writing
 
     def record(self, run: RunData, engine: str, version: str, replace: bool = False,
@@ -369,7 +386,7 @@ class HistoryStore:
                 raise HistoryError(f"no run {engine}:{version} in {self.display_url}")
             _delete_run(conn, run_id)
 
-    # -------------------------------------------------------------------------------------------------------
+    # -----------------------------------------------------------------------------------------------------
     # Reading
 
     def runs(self, engine: str | None = None) -> list[RunInfo]:
@@ -400,16 +417,17 @@ class HistoryStore:
             fds = conn.execute(sa.select(findings_table).where(findings_table.c.run_id == info.id)
                                .order_by(findings_table.c.id)).mappings().all()
             segs = conn.execute(sa.select(segments_table).where(segments_table.c.run_id == info.id)
-                                .order_by(segments_table.c.doc_id, segments_table.c.position)).mappings().all()
+                                .order_by(segments_table.c.doc_id, segments_table.c.position)
+                                ).mappings().all()
         order = {d["doc_id"]: d["position"] for d in docs}
         run = RunData(
             signature=info.signature,
             documents=tuple(DocumentRecord(
-                d["doc_id"], d["position"], d["segments"], d["entities"], d["target_references"], d["checked"],
-                d["consistent"], {k: d[k] for k in FINDING_KINDS}, d["skipped"]) for d in docs),
+                d["doc_id"], d["position"], d["segments"], d["entities"], d["target_references"],
+                d["checked"], d["consistent"], {k: d[k] for k in FINDING_KINDS}, d["skipped"]) for d in docs),
             entities=tuple(EntityRecord(
-                e["doc_id"], e["entity_id"], e["label"], e["gender"], e["confidence"], e["basis"], e["checked"],
-                e["consistent"], e["counts"]) for e in ents),
+                e["doc_id"], e["entity_id"], e["label"], e["gender"], e["confidence"], e["basis"],
+                e["checked"], e["consistent"], e["counts"]) for e in ents),
             findings=tuple(FindingRecord(
                 f["doc_id"], f["kind"], f["seg_id"], f["start_char"], f["end_char"], f["text"], f["expected"],
                 f["found"], f["entity"], f["confidence"]) for f in fds),
@@ -444,7 +462,7 @@ class HistoryStore:
         return pd.DataFrame([dict(r) for r in rows], columns=columns)
 
 
-# -----------------------------------------------------------------------------------------------------------
+# ---------------------------------------------------------------------------------------------------------
 # Rows
 
 
@@ -478,9 +496,9 @@ def _document_row(run_id: int, d: DocumentRecord) -> dict:
 
 
 def _entity_row(run_id: int, e: EntityRecord) -> dict:
-    return {"run_id": run_id, "doc_id": e.doc_id, "entity_id": e.entity_id, "label": e.label, "gender": e.gender,
-            "confidence": e.confidence, "basis": e.basis, "checked": e.checked, "consistent": e.consistent,
-            "counts": e.counts}
+    return {"run_id": run_id, "doc_id": e.doc_id, "entity_id": e.entity_id, "label": e.label,
+            "gender": e.gender, "confidence": e.confidence, "basis": e.basis, "checked": e.checked,
+            "consistent": e.consistent, "counts": e.counts}
 
 
 def _finding_row(run_id: int, f: FindingRecord) -> dict:
@@ -508,7 +526,7 @@ def _short(exc: Exception) -> str:
     return text.splitlines()[0] if text else type(exc).__name__
 
 
-# -----------------------------------------------------------------------------------------------------------
+# ---------------------------------------------------------------------------------------------------------
 # Schema versions and migrations
 
 
@@ -546,5 +564,6 @@ MIGRATIONS: dict[int, Callable[[Connection], None]] = {1: _migrate_1_to_2}
 
 
 __all__ = (
-    "DEFAULT_DB", "HistoryError", "HistoryStore", "RunInfo", "SCHEMA_VERSION", "database_url", "parse_run_name",
+    "DEFAULT_DB", "HistoryError", "HistoryStore", "RunInfo", "SCHEMA_VERSION", "database_url",
+    "parse_run_name",
 )

@@ -10,7 +10,8 @@ from __future__ import annotations
 import logging
 import os
 import tempfile
-from collections.abc import Sequence
+from collections.abc import Callable, Iterator, Sequence
+from contextlib import contextmanager, nullcontext
 
 from gendertrace.model import ParsedText
 
@@ -25,10 +26,21 @@ def _words(p: ParsedText) -> list[str]:
 
 
 def statistical_alignments(
-    sources: Sequence[ParsedText], targets: Sequence[ParsedText], seed: int = 1
+    sources: Sequence[ParsedText],
+    targets: Sequence[ParsedText],
+    seed: int = 1,
+    *,
+    priors: str | None = None,
+    threads: int | None = None,
+    on_links: LinksHook | None = None,
 ) -> list[Alignment] | None:
-    """Symmetrised eflomal alignments for every pair, or None when eflomal is unavailable or the batch too small."""
-    if len(sources) < MIN_STATISTICAL:
+    """Symmetrised eflomal alignments for every pair, or None when eflomal is unavailable or the batch too small.
+
+    Hooks for scaled runs (gendertrace.scale), all off by default: `priors` is an eflomal priors file that informs
+    the sampler (with it, batches smaller than MIN_STATISTICAL are aligned too); `threads` bounds eflomal's
+    OpenMP threads; `on_links` receives the words and raw links of the batch (to learn priors from).
+    """
+    if not sources or (len(sources) < MIN_STATISTICAL and priors is None):
         return None
     try:
         import eflomal
@@ -43,15 +55,50 @@ def statistical_alignments(
         import random
 
         random.seed(seed)
-        eflomal.Aligner().align(src, tgt, links_filename_fwd=fwd, links_filename_rev=rev, quiet=True)
+        with _omp_threads(threads), (open(priors, encoding="utf-8") if priors else nullcontext()) as prior_file:
+            eflomal.Aligner().align(src, tgt, links_filename_fwd=fwd, links_filename_rev=rev, quiet=True,
+                                    priors_input=prior_file)
         with open(fwd, encoding="utf-8") as f_fwd, open(rev, encoding="utf-8") as f_rev:
             fwd_lines, rev_lines = f_fwd.read().splitlines(), f_rev.read().splitlines()
+    if on_links is not None:
+        on_links(src, tgt, fwd_lines, rev_lines)
     out = []
     for k in range(len(sources)):
         a = _parse_links(fwd_lines[k] if k < len(fwd_lines) else "")
         b = _parse_links(rev_lines[k] if k < len(rev_lines) else "")
         out.append(symmetrise(a, b))
     return out
+
+
+# ----------------------------------------------------------------------------------------------------
+# Hooks for scaled runs (used by gendertrace.scale; the defaults above do not depend on them)
+
+LinksHook = Callable[[list[str], list[str], list[str], list[str]], None]
+
+
+def alignment_words(p: ParsedText) -> list[str]:
+    """The words eflomal sees for one segment side; priors files are written in the same vocabulary."""
+    return _words(p)
+
+
+@contextmanager
+def _omp_threads(threads: int | None) -> Iterator[None]:
+    """Bound the OpenMP threads of the eflomal binary (a child process reads it from the environment)."""
+    if threads is None:
+        yield
+        return
+    before = os.environ.get("OMP_NUM_THREADS")
+    os.environ["OMP_NUM_THREADS"] = str(threads)
+    try:
+        yield
+    finally:
+        if before is None:
+            os.environ.pop("OMP_NUM_THREADS", None)
+        else:
+            os.environ["OMP_NUM_THREADS"] = before
+
+
+# ----------------------------------------------------------------------------------------------------
 
 
 def _parse_links(line: str) -> set[tuple[int, int]]:

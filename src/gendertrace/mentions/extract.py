@@ -175,6 +175,8 @@ def extract_mentions(
                                        "determiner agreement"))
             role, clause = _role_and_clause(parsed, t.i)
             marks += _predicate_marks(parsed, t.i, role, clause, rules, side, seg, seg_id, zero=False)
+            if gender == "epicene":
+                marks = []  # grammatical gender only: "la persona" may be anyone
             masc_key = counterpart if gender == "fem" else t.text.lower()
             out.append(
                 Mention(
@@ -195,6 +197,8 @@ def extract_mentions(
                 continue  # "se", "sí": mostly impersonal or passive markers, and never gendered
             if _is_expletive(parsed, t, rules):
                 continue
+            if not form.animate and form.case in ("acc", "dat") and not _verb_clitic(parsed, t):
+                continue  # "lo mismo", "lo que": the neuter article, not an object pronoun
             marks = []
             if form.gender and not _gender_doublet(parsed, t, rules):
                 weight = W_PRONOUN if form.animate else W_CLITIC
@@ -321,6 +325,12 @@ def _role_and_clause(parsed: ParsedText, i: int) -> tuple[str, int]:
         if prep.deprel in ("prep", "agent", "dative") and not prep.is_root:
             return ("obl", prep.head)
     return t.deprel, (t.i if t.is_root else t.head)
+
+
+def _verb_clitic(parsed: ParsedText, t: Token) -> bool:
+    """An object clitic depends on a verb as its object."""
+    head = parsed.head_of(t.i)
+    return head is not None and head.upos in ("VERB", "AUX") and t.deprel in ("obj", "iobj", "expl", "expl:pv")
 
 
 def _governing_clause(parsed: ParsedText, i: int) -> int:

@@ -26,7 +26,7 @@ from gendertrace.model import FINDING_KINDS
 from gendertrace.review.results import ReviewDocument, ReviewEvidence, ReviewFinding
 
 # The report's colours, all of them: the stylesheet uses only these (as CSS custom properties), and
-# tests/review/test_contrast.py checks the contrast of every pair the stylesheet puts together.
+# tests/review/test_review_contrast.py checks the contrast of every pair the stylesheet puts together.
 PALETTE: dict[str, str] = {
     "paper": "#f5f4f0",
     "surface": "#ffffff",
@@ -83,7 +83,7 @@ def esc(text: object) -> str:
 
 
 def _asset(name: str) -> str:
-    return resources.files("gendertrace.review").joinpath("assets", name).read_text(encoding="utf-8")
+    return resources.files("gendertrace.review").joinpath("assets").joinpath(name).read_text(encoding="utf-8")
 
 
 def stylesheet() -> str:
@@ -416,14 +416,13 @@ def _detail(v: _DocumentView, f: ReviewFinding) -> str:
         person = f"{f.entity_label} ({f.entity})"
     evidence = []
     for e in f.evidence:
-        where = f"{e.side}, segment {e.seg_id}"
-        note = "" if v.evidence_located(e) else ' <span class="sub">(not found in the input text)</span>'
-        rule = f' <span class="sub">{esc(e.rule)}</span>' if e.rule else ""
+        where = " · ".join(x for x in (f"{e.side}, segment {e.seg_id}", e.rule) if x)
+        note = "" if v.evidence_located(e) else " (not found in the input text)"
         evidence.append(
             f'<li data-evidence-ref="{v.evidence_ids[(*e.key, e.kind, e.gender)]}">'
             f'<span class="evword">{esc(e.text)}</span> <span class="evkind">{esc(e.kind or "evidence")}'
-            f'{" · " + esc(e.gender) if e.gender else ""}</span> <span class="sub">{esc(where)}</span>'
-            f"{rule}{note}</li>"
+            f'{" · " + esc(e.gender) if e.gender else ""}</span>'
+            f'<span class="evwhere sub">{esc(where)}{note}</span></li>'
         )
     ev_html = (f'<h4>Evidence ({len(f.evidence)})</h4><ol class="evidence-list">{"".join(evidence)}</ol>'
                if evidence else '<h4>Evidence</h4><p class="sub">None: nothing in the document states this '

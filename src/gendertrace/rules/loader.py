@@ -78,7 +78,9 @@ class LanguageRules:
         return form.lower() in self.noun_genders
 
     def noun_counterpart(self, form: str) -> tuple[str, str] | None:
-        """(gender of this singular person-noun form, the form of the other gender); "common" for invariable nouns."""
+        """(gender of this singular person-noun form, the form of the other gender); "common" for invariable
+        nouns whose determiner shows the person's gender; "epicene" for nouns of one fixed grammatical gender
+        whoever is meant (persona, victime), which show nothing."""
         return self.noun_genders.get(form.lower())
 
     def article_counterpart(self, form: str) -> str | None:
@@ -210,6 +212,8 @@ def parse_rules(data: Any, path: Path) -> LanguageRules:
         noun_genders.setdefault(fem, ("fem", masc))
     for form in _str_list(nouns, "common", path, "person_nouns."):
         noun_genders.setdefault(form.lower(), ("common", form.lower()))
+    for form in _str_list({"epicene": [], **nouns}, "epicene", path, "person_nouns."):
+        noun_genders[form.lower()] = ("epicene", form.lower())
 
     expl = data.get("expletives", {"pronouns": [], "verbs": [], "clausal_verbs": [], "clitics": [],
                                    "copular_clause": False})

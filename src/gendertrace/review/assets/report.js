@@ -16,11 +16,17 @@
   function byId(list, id) {
     return list.filter(function (el) { return el.getAttribute("data-finding-id") === id; });
   }
-  function allParts(id) {
-    return Array.prototype.slice.call(document.querySelectorAll(".fmark")).filter(function (el) {
-      return el.getAttribute("data-finding-id") === id;
+  function groupBy(selector, attr) {
+    var groups = {};
+    Array.prototype.forEach.call(document.querySelectorAll(selector), function (el) {
+      var key = el.getAttribute(attr);
+      (groups[key] = groups[key] || []).push(el);
     });
+    return groups;
   }
+  var parts = groupBy(".fmark", "data-finding-id");
+  var evidence = groupBy(".ev", "data-evidence-id");
+  function allParts(id) { return parts[id] || []; }
   function isShown(el) { return !el.classList.contains("is-filtered"); }
   function shownMarks() { return marks.filter(isShown); }
 
@@ -48,10 +54,7 @@
     if (mark) {
       mark.setAttribute("aria-pressed", "true");
       (mark.getAttribute("data-evidence") || "").split(" ").forEach(function (eid) {
-        if (!eid) { return; }
-        Array.prototype.forEach.call(document.querySelectorAll(".ev"), function (ev) {
-          if (ev.getAttribute("data-evidence-id") === eid) { ev.classList.add("is-evidence"); }
-        });
+        (evidence[eid] || []).forEach(function (ev) { ev.classList.add("is-evidence"); });
       });
       if (focus) { mark.focus({ preventScroll: true }); }
       var box = mark.getBoundingClientRect();
