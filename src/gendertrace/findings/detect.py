@@ -168,8 +168,8 @@ def detect_findings(
 
 
 def _unmarked_only(r: Reference) -> bool:
-    """A bare masculine role noun ("presidente") is also the generic form: evidence, but never flagged alone."""
-    return all(mk.rule == "masculine noun form" for mk in r.marks)
+    """A bare generic masculine ("fue elegida presidente") is evidence, but never flagged alone."""
+    return all(mk.rule == "generic masculine noun" for mk in r.marks)
 
 
 def _checkable(m: Mention, links: dict[str, Link], e: Entity) -> bool:

@@ -164,7 +164,8 @@ def extract_mentions(
                 # Languages without gendered articles (English) have only inherently gendered nouns here.
                 marks.append(_mark(side, seg, seg_id, t, gender, "lexical", W_LEXICAL, "gendered noun"))
             elif gender == "masc":
-                marks.append(_mark(side, seg, seg_id, t, gender, "lexical", W_UNMARKED_NOUN, "masculine noun form"))
+                rule = "generic masculine noun" if t.text.lower() in rules.generic_masculine else "masculine noun form"
+                marks.append(_mark(side, seg, seg_id, t, gender, "lexical", W_UNMARKED_NOUN, rule))
             marks += _honorifics_before(parsed, t.i, [t.i], rules, side, seg, seg_id)
             marks += _np_marks(parsed, t.i, rules, side, seg, seg_id, noun_form=True)
             if not any(mk.rule == "determiner agreement" for mk in marks) and t.i > 0:
@@ -403,6 +404,8 @@ def _predicate_marks(parsed, i, role, clause, rules, side, seg, seg_id, zero: bo
     has_pass = any(k.deprel == "aux:pass" for k in kids)
 
     def add(tok: Token, rule: str) -> None:
+        if not tok.text[:1].isalpha():
+            return  # a misparse made punctuation the predicate
         g = tok.gender
         if tok.upos in ("ADJ", "VERB") and rules.endings:
             matched, by_ending = rules.ending_gender(tok.text)
@@ -417,9 +420,8 @@ def _predicate_marks(parsed, i, role, clause, rules, side, seg, seg_id, zero: bo
             if ng not in ("fem", "masc"):
                 return
             g = ng
-            if g == "masc":
-                # A masculine predicate noun is also the generic form ("es ingeniero" of a profession).
-                marks.append(_mark(side, seg, seg_id, tok, g, "lexical", W_UNMARKED_NOUN, "masculine noun form"))
+            if g == "masc" and tok.text.lower() in rules.generic_masculine:
+                marks.append(_mark(side, seg, seg_id, tok, g, "lexical", W_UNMARKED_NOUN, "generic masculine noun"))
                 return
         weight = W_ZERO_MASC_PREDICATE if zero and g == "masc" else W_PREDICATE
         marks.append(_mark(side, seg, seg_id, tok, g, "agreement", weight, rule))

@@ -65,6 +65,7 @@ class LanguageRules:
     passive_aux: frozenset[str]
     invariable_aux: frozenset[str]
     endings: tuple[tuple[str, str | None], ...] = ()
+    generic_masculine: frozenset[str] = frozenset()
     expletive_pronouns: frozenset[str] = frozenset()
     expletive_verbs: frozenset[str] = frozenset()
     expletive_clausal_verbs: frozenset[str] = frozenset()
@@ -212,6 +213,8 @@ def parse_rules(data: Any, path: Path) -> LanguageRules:
         noun_genders.setdefault(fem, ("fem", masc))
     for form in _str_list(nouns, "common", path, "person_nouns."):
         noun_genders.setdefault(form.lower(), ("common", form.lower()))
+    generic = frozenset(f.lower() for f in _str_list({"generic_masculine": [], **nouns}, "generic_masculine", path,
+                                                        "person_nouns."))
     for form in _str_list({"epicene": [], **nouns}, "epicene", path, "person_nouns."):
         noun_genders[form.lower()] = ("epicene", form.lower())
 
@@ -236,6 +239,7 @@ def parse_rules(data: Any, path: Path) -> LanguageRules:
         noun_genders=noun_genders,
         **lists,
         endings=tuple(endings),
+        generic_masculine=generic,
         expletive_pronouns=expl_lists["pronouns"],
         expletive_verbs=expl_lists["verbs"],
         expletive_clausal_verbs=expl_lists["clausal_verbs"],

@@ -1,0 +1,122 @@
+"""Where batches run: in this process, in worker processes on this machine, or as tasks on a dask cluster.
+
+Every executor takes batches in input order and gives their outcomes back in the same order, keeping only a
+bounded number of batches in flight (so memory does not grow with the corpus, and output appears as soon as
+the earliest unfinished batch is done).
+"""
+
+from __future__ import annotations
+
+import multiprocessing
+import os
+from collections import deque
+from collections.abc import Callable, Iterable, Iterator
+from concurrent.futures import ProcessPoolExecutor
+
+from gendertrace.errors import GendertraceError
+from gendertrace.scale.plan import ScoringPlan, scorer_for
+from gendertrace.scale.work import Batch, BatchOutcome, score_batch, score_batch_with
+
+DASK_HINT = "the dask executor needs dask.distributed: pip install 'gendertrace[dask]'"
+
+
+def available_cores() -> int:
+    """Cores this process may run on (its CPU affinity where the system tells it)."""
+    try:
+        return len(os.sched_getaffinity(0))
+    except AttributeError:  # pragma: no cover - not on Linux
+        return os.cpu_count() or 1
+
+
+def _in_order(submit: Callable[[Batch], object], result: Callable[[object], BatchOutcome],
+              batches: Iterable[Batch], window: int) -> Iterator[BatchOutcome]:
+    """Submit up to `window` batches ahead and yield outcomes in submission order."""
+    pending: deque = deque()
+    it = iter(batches)
+    exhausted = False
+    while True:
+        while not exhausted and len(pending) < window:
+            batch = next(it, None)
+            if batch is None:
+                exhausted = True
+            else:
+                pending.append(submit(batch))
+        if not pending:
+            return
+        yield result(pending.popleft())
+
+
+class InlineExecutor:
+    """Batches one after the other in this process (`--jobs 1`)."""
+
+    workers = 1
+
+    def __init__(self, plan: ScoringPlan | None = None, scorer=None) -> None:
+        if (plan is None) == (scorer is None):
+            raise ValueError("give a plan or a scorer")
+        self.plan, self.scorer = plan, scorer
+
+    def describe(self) -> str:
+        return "this process"
+
+    def run(self, batches: Iterable[Batch]) -> Iterator[BatchOutcome]:
+        scorer = self.scorer if self.scorer is not None else scorer_for(self.plan)
+        for batch in batches:
+            yield score_batch_with(scorer, batch)
+
+
+def _start_worker(plan: ScoringPlan) -> None:
+    scorer_for(plan)  # rules and the aligner once per worker; pipelines load on their first uncached text
+
+
+class ProcessExecutor:
+    """Batches in `jobs` spawned worker processes on this machine; each builds its Scorer once."""
+
+    def __init__(self, plan: ScoringPlan, jobs: int) -> None:
+        self.plan, self.workers = plan, jobs
+
+    def describe(self) -> str:
+        return f"{self.workers} worker processes"
+
+    def run(self, batches: Iterable[Batch]) -> Iterator[BatchOutcome]:
+        # spawn, not fork: a forked copy of a process that has loaded pipelines or opened SQLite is unsafe.
+        context = multiprocessing.get_context("spawn")
+        pool = ProcessPoolExecutor(self.workers, mp_context=context, initializer=_start_worker,
+                                   initargs=(self.plan,))
+        try:
+            yield from _in_order(lambda b: pool.submit(score_batch, self.plan, b), lambda f: f.result(),
+                                 batches, 2 * self.workers)
+        finally:
+            pool.shutdown(wait=True, cancel_futures=True)
+
+
+class DaskExecutor:
+    """Batches as tasks on a dask.distributed cluster, reached at `address` (e.g. tcp://host:8786).
+
+    Every worker must have gendertrace and the language pipelines installed; each worker process builds its
+    Scorer on its first task and keeps it. Documents and outcomes travel pickled between the client and the
+    cluster, as dask sends all task data: use it on a cluster you trust.
+    """
+
+    def __init__(self, plan: ScoringPlan, address: str, timeout: float = 30.0) -> None:
+        self.plan, self.address, self.timeout = plan, address, timeout
+        self.workers = 0
+
+    def describe(self) -> str:
+        return f"dask cluster at {self.address} ({self.workers} worker threads)"
+
+    def run(self, batches: Iterable[Batch]) -> Iterator[BatchOutcome]:
+        try:
+            from distributed import Client
+        except ImportError as exc:
+            raise GendertraceError(DASK_HINT) from exc
+        try:
+            client = Client(self.address, timeout=self.timeout, set_as_default=False)
+        except OSError as exc:
+            raise GendertraceError(f"cannot reach the dask scheduler at {self.address}: {exc}") from exc
+        try:
+            self.workers = max(1, sum(client.nthreads().values()))
+            yield from _in_order(lambda b: client.submit(score_batch, self.plan, b, pure=False),
+                                 lambda f: f.result(), batches, 2 * self.workers)
+        finally:
+            client.close()
