@@ -6,10 +6,14 @@ import json
 from collections.abc import Iterable
 from dataclasses import dataclass, field
 from pathlib import Path
+from typing import TYPE_CHECKING
 
-from gendertrace.io.readers import read_corpus_with_report
-from gendertrace.model import Document, DocumentResult
+from gendertrace.model import Document, DocumentResult, DocumentStats
 from gendertrace.pipeline import Scorer
+
+if TYPE_CHECKING:
+    from gendertrace.scale.plan import ScoringPlan
+    from gendertrace.scale.run import RunReport
 
 
 @dataclass
@@ -28,8 +32,11 @@ class Summary:
     )
 
     def add(self, r: DocumentResult) -> None:
+        self.add_stats(r.stats)
+
+    def add_stats(self, s: DocumentStats) -> None:
+        """Count one document from its statistics alone (what a worker process sends back)."""
         self.documents += 1
-        s = r.stats
         self.segments += s.segments
         self.entities += s.entities
         self.target_references += s.target_references
@@ -86,24 +93,57 @@ def _with_progress(scorer: Scorer, docs: list[Document], progress: bool):
         yield from scorer.score(docs, progress=bar.update)
 
 
-def score_file(input_path, out_path, scorer: Scorer, fmt: str | None = None, progress: bool = False) -> Summary:
-    """Read INPUT, score it, write OUT (JSONL) and OUT.signature.json; return the corpus summary."""
-    docs, report = read_corpus_with_report(input_path, fmt)
-    out_path = Path(out_path)
-    out_path.parent.mkdir(parents=True, exist_ok=True)
-    with open(out_path, "w", encoding="utf-8") as out:
-        summary = write_results(_with_progress(scorer, docs, progress), out)
-    summary.untranslated = len(report.untranslated)
-    signature = dict(scorer.signature(), input=str(input_path), documents=summary.documents)
-    Path(str(out_path) + ".signature.json").write_text(json.dumps(signature, indent=2) + "\n", encoding="utf-8")
-    return summary
+def score_file(
+    input_path,
+    out_path,
+    scorer: Scorer | ScoringPlan,
+    fmt: str | None = None,
+    progress: bool = False,
+    *,
+    jobs: int = 1,
+    scheduler: str | None = None,
+    resume: bool = False,
+    save_align_priors: str | Path | None = None,
+) -> Summary:
+    """Read INPUT, score it, write OUT (JSONL) and OUT.signature.json; return the corpus summary.
+
+    Documents stream through in batches (`scorer.settings.batch_size`, or the plan's `batch_docs`); each
+    result line is written as soon as the documents before it are done. With a `ScoringPlan` instead of a
+    Scorer, the batches can run in `jobs` worker processes or on the dask cluster at `scheduler` (see
+    gendertrace.scale); `resume` continues an interrupted run, and `save_align_priors` writes the alignment
+    statistics the run learned.
+    The run's other facts (parse cache hits, executor) are in `score_file_report`.
+    """
+    return score_file_report(input_path, out_path, scorer, fmt, progress, jobs=jobs, scheduler=scheduler,
+                             resume=resume, save_align_priors=save_align_priors).summary
+
+
+def score_file_report(
+    input_path,
+    out_path,
+    scorer: Scorer | ScoringPlan,
+    fmt: str | None = None,
+    progress: bool = False,
+    *,
+    jobs: int = 1,
+    scheduler: str | None = None,
+    resume: bool = False,
+    save_align_priors: str | Path | None = None,
+) -> RunReport:
+    """`score_file`, returning the whole run report (summary, executor, cache hits, learned priors)."""
+    from gendertrace.scale.plan import ScoringPlan
+    from gendertrace.scale.run import score_stream
+
+    kind = {"plan": scorer} if isinstance(scorer, ScoringPlan) else {"scorer": scorer}
+    return score_stream(input_path, out_path, fmt=fmt, jobs=jobs, scheduler=scheduler, resume=resume,
+                        progress=progress, save_priors=save_align_priors, **kind)
 
 
 def explain_document(scorer: Scorer, doc: Document) -> str:
     """A terminal rendering of one document: segments, chains, entities with evidence, findings."""
     result = next(iter(scorer.score([doc])))
     lines = [f"document {doc.doc_id}  ({scorer.src_lang} -> {scorer.tgt_lang})", ""]
-    for k, s in enumerate(doc.segments):
+    for s in doc.segments:
         lines.append(f"  [{s.seg_id}] src: {s.source}")
         lines.append(f"  {' ' * (len(s.seg_id) + 2)} tgt: {s.target}")
     lines += ["", "chains:"]
@@ -116,12 +156,13 @@ def explain_document(scorer: Scorer, doc: Document) -> str:
         g = e.gender or "unknown"
         lines.append(f"  {e.id} {e.label!r}: {g} (confidence {e.confidence:.2f})")
         for ev in e.evidence:
-            lines.append(f"      {ev.side:<6} [{ev.seg_id}] {ev.text!r:<18} {ev.gender:<5} {ev.kind} ({ev.rule}, "
-                         f"weight {ev.weight:.2f})")
+            lines.append(f"      {ev.side:<6} [{ev.seg_id}] {ev.text!r:<18} {ev.gender:<5} {ev.kind} "
+                         f"({ev.rule}, weight {ev.weight:.2f})")
     lines += ["", "findings:" if result.findings else "findings: none"]
     for f in result.findings:
         lines.append(f"  {f.kind} [{f.seg_id}] {f.start}-{f.end} {f.text!r}: expected {f.expected}, found "
                      f"{f.found}, confidence {f.confidence:.2f} ({f.entity})")
     s = result.stats
-    lines += ["", f"checked {s.checked} of {s.target_references} gendered target references; {s.consistent} consistent"]
+    lines += ["", f"checked {s.checked} of {s.target_references} gendered target references; "
+                  f"{s.consistent} consistent"]
     return "\n".join(lines)

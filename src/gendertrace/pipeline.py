@@ -38,7 +38,8 @@ def pronoun_pairs(src: LanguageRules, tgt: LanguageRules) -> dict[tuple[str, str
             best = None
             for x in fa:
                 for y in fb:
-                    if x.type != y.type or not (x.number == y.number or None in (x.number, y.number)):
+                    if x.type != y.type or x.person != y.person or not (
+                            x.number == y.number or None in (x.number, y.number)):
                         continue
                     if x.case and y.case and x.case != y.case:
                         continue
@@ -74,7 +75,7 @@ class Scorer:
         s = self.settings
         self.src_parser = src_parser or get_parser(src_lang, s.parser, s.src_model)
         self.tgt_parser = tgt_parser or get_parser(tgt_lang, s.parser, s.tgt_model)
-        # Hook: the statistical aligner of a batch; gendertrace.scale swaps in priors, threads or a frozen model.
+        # Hook: the batch's statistical aligner; gendertrace.scale swaps in priors, threads or a frozen model.
         self.statistical_aligner: Callable[[Sequence[ParsedText], Sequence[ParsedText]], list | None] = (
             statistical_alignments
         )

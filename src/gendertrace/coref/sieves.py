@@ -175,9 +175,22 @@ def resolve_chains(
             if a.key == b.key and cl.find(a.id) != cl.find(b.id):
                 try_union(a, b)
 
+    # Pass 6a: a first person inside a quotation is its speaker: the nearest subject outside the quotation in
+    # the same segment ("«Estoy cansada», dijo Ana"; "Ana said: 'I am tired'").
+    for m in ms:
+        if m.person != "1" or not m.quoted:
+            continue
+        speakers = [c for c in ms if c.seg == m.seg and not c.quoted and c.person != "1"
+                    and c.role in ("nsubj", "nsubj:pass") and c.pron_type != "possessive"]
+        if speakers:
+            best = min(speakers, key=lambda c: abs(c.head - m.head))
+            if try_union(best, m):
+                antecedent[m.id] = best.id
+                certainty[m.id] = 1.0 if len(speakers) == 1 else ALTERNATIVE_CERTAINTY
+
     # Pass 6: pronouns and zero subjects, in text order, to the most salient compatible preceding cluster.
     for m in ms:
-        if m.kind not in ("pronoun", "zero") or m.id in antecedent:
+        if m.kind not in ("pronoun", "zero") or m.id in antecedent or m.person == "1":
             continue
         if not m.animate and m.gender is None:
             continue  # "it", "its", "ello": a thing, it joins no person
@@ -277,8 +290,8 @@ def _pick_antecedent(m, ms, cl, parses, use_gender):
             continue
         if c.kind == "pronoun" and c.pron_type == "possessive" and c.seg == m.seg:
             continue
-        if not c.animate:
-            continue  # clitics that may stand for things ("lo", "la") are anaphors, never antecedents
+        if not c.animate or c.person == "1":
+            continue  # clitics that may stand for things are anaphors only; a quoted "I" belongs to its speaker
         if cl.find(c.id) == cl.find(m.id):
             continue
         # Binding: a non-reflexive personal pronoun does not corefer with the subject of its own clause, nor,

@@ -36,9 +36,9 @@ def statistical_alignments(
 ) -> list[Alignment] | None:
     """Symmetrised eflomal alignments for every pair, or None when eflomal is unavailable or the batch too small.
 
-    Hooks for scaled runs (gendertrace.scale), all off by default: `priors` is an eflomal priors file that informs
-    the sampler (with it, batches smaller than MIN_STATISTICAL are aligned too); `threads` bounds eflomal's
-    OpenMP threads; `on_links` receives the words and raw links of the batch (to learn priors from).
+    Hooks for scaled runs (gendertrace.scale), all off by default: `priors` is an eflomal priors file that
+    informs the sampler (with it, batches smaller than MIN_STATISTICAL are aligned too); `threads` bounds
+    eflomal's OpenMP threads; `on_links` receives the words and raw links of the batch (to learn priors from).
     """
     if not sources or (len(sources) < MIN_STATISTICAL and priors is None):
         return None
@@ -55,7 +55,8 @@ def statistical_alignments(
         import random
 
         random.seed(seed)
-        with _omp_threads(threads), (open(priors, encoding="utf-8") if priors else nullcontext()) as prior_file:
+        prior_input = open(priors, encoding="utf-8") if priors else nullcontext()
+        with _omp_threads(threads), prior_input as prior_file:
             eflomal.Aligner().align(src, tgt, links_filename_fwd=fwd, links_filename_rev=rev, quiet=True,
                                     priors_input=prior_file)
         with open(fwd, encoding="utf-8") as f_fwd, open(rev, encoding="utf-8") as f_rev:

@@ -118,6 +118,7 @@ def extract_mentions(
     """All person mentions of one segment side, in text order, with their gender marks."""
     known = {name_key(n) for n in known_names}
     toks = parsed.tokens
+    quoted = _quoted_tokens(parsed)
     prefix = f"{side[0]}{seg}."
     out: list[Mention] = []
     used: set[int] = set()
@@ -194,6 +195,8 @@ def extract_mentions(
             form = _pick_pronoun_form(t, rules)
             if form is None or form.number == "plur":
                 continue
+            if form.person == "1" and t.i not in quoted:
+                continue  # outside quotations "I" is the writer, not a person of the document
             if form.type == "reflexive" and form.gender is None:
                 continue  # "se", "sí": mostly impersonal or passive markers, and never gendered
             if _is_expletive(parsed, t, rules):
@@ -212,15 +215,14 @@ def extract_mentions(
             out.append(
                 Mention(
                     id=f"{prefix}{t.i}", side=side, seg=seg, head=t.i, tokens=(t.i,), kind="pronoun", text=t.text,
-                    start=t.start, end=t.end, number=form.number, person="3", pron_type=form.type, role=role,
+                    start=t.start, end=t.end, number=form.number, person=form.person, pron_type=form.type, role=role,
                     clause=clause, key=pronoun_key(t.text), marks=tuple(marks), sent=t.sent, animate=form.animate,
                     case=form.case,
                 )
             )
 
     if rules.pro_drop:
-        out += _zero_subjects(parsed, seg, seg_id, side, rules, prefix)
-    quoted = _quoted_tokens(parsed)
+        out += _zero_subjects(parsed, seg, seg_id, side, rules, prefix, quoted)
     out = [replace(m, quoted=True) if m.tokens and m.tokens[0] in quoted else m for m in out]
     out.sort(key=lambda m: (m.start, m.kind == "zero"))
     return out
@@ -437,6 +439,11 @@ def _predicate_marks(parsed, i, role, clause, rules, side, seg, seg_id, zero: bo
         # "a été élue"); with only the compound-tense auxiliary it is invariable ("ha operado", "a opéré").
         if has_pass or aux_lemmas & rules.agreeing_aux:
             add(pred, "participle with agreeing auxiliary")
+    # Coordinated predicates agree with the same subject ("cansada pero muy satisfecha").
+    if marks and pred.upos in ("ADJ", "VERB"):
+        for k in kids:
+            if k.deprel == "conj" and k.upos in ("ADJ", "VERB") and (k.upos == "ADJ" or k.feat("VerbForm") == "Part"):
+                add(k, "predicative with copula")
     # Secondary predicates ("quedó sorprendida", "se mostró convencida").
     if pred.lemma.lower() in rules.copulas:
         for k in kids:
@@ -445,8 +452,9 @@ def _predicate_marks(parsed, i, role, clause, rules, side, seg, seg_id, zero: bo
     return marks
 
 
-def _zero_subjects(parsed, seg, seg_id, side, rules, prefix) -> list[Mention]:
-    """Finite 3rd-person singular clauses with no overt subject (pro-drop languages)."""
+def _zero_subjects(parsed, seg, seg_id, side, rules, prefix, quoted=frozenset()) -> list[Mention]:
+    """Finite 3rd-person singular clauses with no overt subject (pro-drop languages), and 1st-person singular
+    ones inside quotations (the speaker: "«Estoy cansada», dijo")."""
     out = []
     toks = parsed.tokens
     for t in toks:
@@ -461,7 +469,10 @@ def _zero_subjects(parsed, seg, seg_id, side, rules, prefix) -> list[Mention]:
                 if k.deprel in ("cop", "aux", "aux:pass") and k.feat("VerbForm") == "Fin":
                     finite = k
                     break
-        if finite is None or finite.feat("Person") != "3" or finite.feat("Number") != "Sing":
+        if finite is None or finite.feat("Number") != "Sing":
+            continue
+        person = finite.feat("Person")
+        if person != "3" and not (person == "1" and finite.i in quoted):
             continue
         if any(k.deprel in SUBJECT_LIKE for k in kids):
             continue
@@ -474,7 +485,7 @@ def _zero_subjects(parsed, seg, seg_id, side, rules, prefix) -> list[Mention]:
         out.append(
             Mention(
                 id=f"{prefix}z{t.i}", side=side, seg=seg, head=t.i, tokens=(finite.i,), kind="zero",
-                text=finite.text, start=finite.start, end=finite.end, number="sing", person="3",
+                text=finite.text, start=finite.start, end=finite.end, number="sing", person=person,
                 role="nsubj", clause=t.i, key="", marks=tuple(marks), sent=finite.sent,
             )
         )

@@ -1,14 +1,14 @@
-"""An on-disk cache of parses, so that re-scoring the same sources (a new engine version) parses only new text.
+"""An on-disk cache of parses: re-scoring the same sources (a new engine version) parses only the new text.
 
 What the cache promises:
 
-- A parse is looked up by the exact segment text, its language and the parser's `signature()` (backend, pipeline
-  name and version), plus a format version of this module and the tool version (the conversion into the internal
-  model is part of the tool). A new pipeline version or tool version therefore never reads an old parse.
-- The stored value is the `ParsedText`'s token fields as JSON, zlib-compressed; nothing is ever unpickled, so a
-  cache folder shared with others can hold no code.
-- It is one SQLite database (`parses.sqlite` in the cache folder) in WAL mode, safe for several processes writing
-  at once on one machine (SQLite's locking; it needs a local file system, not a network share).
+- A parse is looked up by the exact segment text, its language and the parser's `signature()` (backend,
+  pipeline name and version), plus a format version of this module and the tool version (the conversion into
+  the internal model is part of the tool). A new pipeline version or tool version never reads an old parse.
+- The stored value is the `ParsedText`'s token fields as JSON, zlib-compressed; nothing is ever unpickled, so
+  a cache folder shared with others can hold no code.
+- It is one SQLite database (`parses.sqlite` in the cache folder) in WAL mode, safe for several processes
+  writing at once on one machine (SQLite's locking; it needs a local file system, not a network share).
 - With a size bound, the least recently used parses are evicted once the stored values exceed it, down to 80%
   of the bound (the database file itself reuses freed pages rather than shrinking).
 """
@@ -78,8 +78,8 @@ def decode_parse(blob: bytes, text: str, lang: str) -> ParsedText:
     """The ParsedText that `encode_parse` stored for `text`."""
     rows = json.loads(zlib.decompress(blob).decode("utf-8"))
     tokens = tuple(
-        Token(i=i, text=tx, lemma=lemma, upos=upos, feats=feats, head=head, deprel=deprel, start=start, end=end,
-              sent=sent, ent=ent)
+        Token(i=i, text=tx, lemma=lemma, upos=upos, feats=feats, head=head, deprel=deprel, start=start,
+              end=end, sent=sent, ent=ent)
         for i, tx, lemma, upos, feats, head, deprel, start, end, sent, ent in rows
     )
     return ParsedText(text, tokens, lang)
@@ -129,7 +129,8 @@ class ParseCache:
             now = time.time()
             with self._write():
                 self._db.executemany("UPDATE parses SET used = ? WHERE key = ?", [(now, k) for k in found])
-        return [decode_parse(found[k], t, lang) if k in found else None for k, t in zip(keys, texts, strict=True)]
+        return [decode_parse(found[k], t, lang) if k in found else None
+                for k, t in zip(keys, texts, strict=True)]
 
     def put_many(self, signature: str, parses: Sequence[ParsedText]) -> None:
         """Store parses (a text already present keeps its first value: both came from the same parser)."""

@@ -44,6 +44,7 @@ class PronounForm:
     type: str
     case: str | None = None
     animate: bool = True
+    person: str = "3"
 
 
 @dataclass(frozen=True)
@@ -153,7 +154,7 @@ def parse_rules(data: Any, path: Path) -> LanguageRules:
         where = f"pronouns[{k}]"
         if not isinstance(item, dict):
             raise _fail(path, where, f"expected a mapping, found {item!r}")
-        extra = set(item) - {"form", "gender", "number", "type", "case", "animate"}
+        extra = set(item) - {"form", "gender", "number", "type", "case", "animate", "person"}
         if extra:
             raise _fail(path, f"{where}.{sorted(extra)[0]}", "unknown key")
         form = _require(item, "form", str, path, where + ".")
@@ -171,8 +172,11 @@ def parse_rules(data: Any, path: Path) -> LanguageRules:
         animate = item.get("animate", True)
         if not isinstance(animate, bool):
             raise _fail(path, f"{where}.animate", f"expected true or false, found {animate!r}")
+        person = str(item.get("person", 3))
+        if person not in ("1", "3"):
+            raise _fail(path, f"{where}.person", f"expected 1 or 3, found {item.get('person')!r}")
         pronouns.setdefault(form.lower(), []).append(
-            PronounForm(form.lower(), gender, number, ptype, item.get("case"), animate)
+            PronounForm(form.lower(), gender, number, ptype, item.get("case"), animate, person)
         )
 
     honorifics: dict[str, str] = {}

@@ -50,8 +50,8 @@ class ScoringPlan:
 def build_scorer(plan: ScoringPlan) -> Scorer:
     """A Scorer for the plan. spaCy pipelines load on the first text the cache cannot answer, not before."""
     cache = ParseCache(plan.cache_dir, plan.cache_max_mb) if plan.cache_dir else None
-    settings = ScoreSettings(min_confidence=plan.min_confidence, batch_size=plan.batch_docs, parser=plan.parser,
-                             src_model=plan.src_model, tgt_model=plan.tgt_model)
+    settings = ScoreSettings(min_confidence=plan.min_confidence, batch_size=plan.batch_docs,
+                             parser=plan.parser, src_model=plan.src_model, tgt_model=plan.tgt_model)
     src = _side_parser(plan.src_lang, plan.parser, plan.src_model, plan.src_conllu, cache)
     tgt = _side_parser(plan.tgt_lang, plan.parser, plan.tgt_model, plan.tgt_conllu, cache)
     scorer = Scorer(plan.src_lang, plan.tgt_lang, settings, src, tgt)

@@ -1,8 +1,10 @@
-"""Word-alignment statistics kept between runs: learned from eflomal's links, saved as an eflomal priors file,
-and read back either as priors for eflomal's sampler or as a fixed (frozen) model that aligns deterministically.
+"""Word-alignment statistics kept between runs: learned from eflomal's links, saved as an eflomal priors
+file, and read back either as priors for eflomal's sampler or as a fixed (frozen) model that aligns
+deterministically.
 
-A priors file is eflomal's own text format (LEX, FERF, FERR, HMMF and HMMR lines of counts), so eflomal's tools
-read it too. It is written in the vocabulary of `gendertrace.link.align.alignment_words` (lower-cased tokens).
+A priors file is eflomal's own text format (LEX, FERF, FERR, HMMF and HMMR lines of counts), so eflomal's
+tools read it too. It is written in the vocabulary of `gendertrace.link.align.alignment_words`
+(lower-cased tokens).
 """
 
 from __future__ import annotations
@@ -37,7 +39,7 @@ class PriorCounts:
     sentences: int = 0
 
     def add_links(self, src: list[str], tgt: list[str], fwd: list[str], rev: list[str]) -> None:
-        """Count one batch's eflomal links (space-joined words and `i-j` link lines, as eflomal reads them)."""
+        """Count one batch's eflomal links (space-joined words and `i-j` link lines, as eflomal writes)."""
         import eflomal
 
         n = min(len(src), len(tgt), len(fwd), len(rev))
@@ -118,9 +120,12 @@ class SampledAligner:
         digest = f", priors {priors_digest(priors)}" if priors else ""
         self.label = f"eflomal sampled per batch{digest}"
 
-    def __call__(self, sources: Sequence[ParsedText], targets: Sequence[ParsedText]) -> list[Alignment] | None:
+    def __call__(
+        self, sources: Sequence[ParsedText], targets: Sequence[ParsedText]
+    ) -> list[Alignment] | None:
         hook = self.learned.add_links if self.learned is not None else None
-        return statistical_alignments(sources, targets, priors=self.priors, threads=self.threads, on_links=hook)
+        return statistical_alignments(sources, targets, priors=self.priors, threads=self.threads,
+                                      on_links=hook)
 
     def take_learned(self) -> PriorCounts | None:
         """The counts learned since the last call (None when not learning)."""
@@ -133,10 +138,11 @@ class SampledAligner:
 class FrozenAligner:
     """A fixed model read from a priors file: each segment is aligned on its own, deterministically.
 
-    Each target word links to the source word with the best association (p(t|s) * p(s|t) from the counts) times
-    closeness to the diagonal, and each source word likewise to a target word; the two directions are then
-    symmetrised like eflomal's. No sampling, and nothing depends on the other segments of the batch, so results
-    do not depend on batch size, process or machine. Words the counts do not know are left to the anchors.
+    Each target word links to the source word with the best association (p(t|s) * p(s|t) from the counts)
+    times closeness to the diagonal, and each source word likewise to a target word; the two directions are
+    then symmetrised like eflomal's. No sampling, and nothing depends on the other segments of the batch, so
+    results do not depend on batch size, process or machine. Words the counts do not know are left to the
+    anchors.
     """
 
     def __init__(self, priors: str) -> None:

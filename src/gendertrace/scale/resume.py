@@ -50,8 +50,8 @@ def completed_records(path: str | Path) -> Iterator[tuple[str, DocumentStats]]:
                 obj = json.loads(line)
                 yield obj["doc_id"], stats_from_json(obj["stats"])
             except (json.JSONDecodeError, KeyError, TypeError) as exc:
-                raise InputError(str(path), lineno, f"not a result line of gendertrace ({exc}); cannot resume") \
-                    from exc
+                raise InputError(str(path), lineno,
+                                 f"not a result line of gendertrace ({exc}); cannot resume") from exc
 
 
 def stats_from_json(obj: dict) -> DocumentStats:

@@ -76,10 +76,10 @@ def score_batch_with(scorer: Scorer, batch: Batch) -> BatchOutcome:
 
 
 def score_batch(plan: ScoringPlan, batch: Batch) -> BatchOutcome:
-    """Score one batch in this process with the plan's Scorer (the task that workers and cluster nodes run)."""
+    """Score one batch in this process with the plan's Scorer (the task workers and cluster nodes run)."""
     try:
         return score_batch_with(scorer_for(plan), batch)
     except GendertraceError as exc:
-        # Some of the tool's errors take several constructor arguments and do not survive pickling as they are.
-        last = batch.documents[-1].doc_id if batch.documents else "?"
-        raise BatchError(f"{exc} (batch {batch.index}, documents {batch.documents[0].doc_id}..{last})") from None
+        # Some of the tool's errors take several constructor arguments and would not survive pickling.
+        first, last = batch.documents[0].doc_id, batch.documents[-1].doc_id
+        raise BatchError(f"{exc} (batch {batch.index}, documents {first}..{last})") from None
