@@ -61,42 +61,49 @@ def main() -> None:
 @main.command()
 @click.argument("input_path", metavar="INPUT", type=click.Path(exists=True, dir_okay=False))
 @_common_options
-@click.option("--out", "-o", required=True, type=click.Path(dir_okay=False), help="Results, one JSON object per document.")
+@click.option("--out", "-o", required=True, type=click.Path(dir_okay=False),
+              help="Results, one JSON object per document.")
 @click.option("--fail-under", type=click.FloatRange(0, 1), default=None,
               help="Exit with status 3 when the corpus consistency rate is below RATE (for CI gates).")
-@click.option("--progress/--no-progress", default=None, help="Progress bar on stderr (default: when it is a terminal).")
+@click.option("--progress/--no-progress", default=None,
+              help="Progress bar on stderr (default: when it is a terminal).")
 @click.option("--quiet", "-q", is_flag=True, help="Do not print the summary.")
 @click.option("--jobs", "-j", type=click.IntRange(min=1), default=None,
-              help="Cores to use: batches run in this many worker processes, each aligner single-threaded "
-                   "[default: all cores of this machine].")
+              help="Cores to use: batches run in this many worker processes, each aligner "
+                   "single-threaded [default: all cores of this machine].")
 @click.option("--batch-docs", type=click.IntRange(min=1), default=500, show_default=True,
-              help="Documents parsed, aligned and scored together; the word aligner is trained on each batch, "
-                   "so this bounds memory and sets the alignment's context. Part of the run signature.")
+              help="Documents parsed, aligned and scored together; the word aligner is trained on "
+                   "each batch, so this bounds memory and sets the alignment's context. Part of the "
+                   "run signature.")
 @click.option("--cache", "cache_dir", type=click.Path(file_okay=False), default=None,
-              help="Folder of the parse cache [default: $GENDERTRACE_CACHE_DIR, else gendertrace/parses in the "
-                   "user cache folder ($XDG_CACHE_HOME or ~/.cache)].")
+              help="Folder of the parse cache [default: $GENDERTRACE_CACHE_DIR, else "
+                   "gendertrace/parses in the user cache folder ($XDG_CACHE_HOME or ~/.cache)].")
 @click.option("--no-cache", is_flag=True, help="Parse everything; read and write no parse cache.")
 @click.option("--cache-max-mb", type=click.FloatRange(min=1), default=1024, show_default=True,
               help="Size bound of the parse cache; the least recently used parses are evicted beyond it.")
-@click.option("--align-mode", type=click.Choice(["sampled", "frozen"]), default="sampled", show_default=True,
-              help="sampled: eflomal trained on each batch (random: runs may differ slightly); frozen: a fixed "
-                   "model read from --align-priors, deterministic and independent of batches.")
+@click.option("--align-mode", type=click.Choice(["sampled", "frozen"]), default="sampled",
+              show_default=True,
+              help="sampled: eflomal trained on each batch (random: two runs may differ slightly); "
+                   "frozen: a fixed model read from --align-priors, deterministic and independent of "
+                   "batches.")
 @click.option("--align-priors", type=click.Path(exists=True, dir_okay=False), default=None,
-              help="Alignment statistics saved by an earlier run of this language pair (--save-align-priors): "
-                   "priors for the sampler, or the model itself with --align-mode frozen.")
+              help="Alignment statistics saved by an earlier run of this language pair "
+                   "(--save-align-priors): priors for the sampler, or the model itself with "
+                   "--align-mode frozen.")
 @click.option("--save-align-priors", type=click.Path(dir_okay=False), default=None,
-              help="Write the alignment statistics learned by this run (sampled mode) as a priors file; after "
-                   "--resume it covers the batches scored by this invocation.")
+              help="Write the alignment statistics this run learns (sampled mode) as a priors file; "
+                   "after --resume it covers the batches scored by this invocation.")
 @click.option("--resume", is_flag=True,
-              help="Continue an interrupted run: documents complete in OUT are kept and skipped, a half-written "
-                   "last line is cut off. The settings must be those the run started with.")
+              help="Continue an interrupted run: documents complete in OUT are kept and skipped, a "
+                   "half-written last line is cut off. The settings must be those the run started with.")
 @click.option("--executor", type=click.Choice(["local", "dask"]), default="local", show_default=True,
-              help="local: this machine (--jobs); dask: tasks on the dask.distributed cluster at --scheduler.")
+              help="local: this machine (--jobs); dask: tasks on the dask.distributed cluster at "
+                   "--scheduler.")
 @click.option("--scheduler", default=None, metavar="ADDRESS",
               help="Address of the dask scheduler, e.g. tcp://10.1.2.3:8786 (with --executor dask).")
 def score(input_path, src_lang, tgt_lang, fmt, parser, src_model, tgt_model, src_conllu, tgt_conllu,
-          min_confidence, out, fail_under, progress, quiet, jobs, batch_docs, cache_dir, no_cache, cache_max_mb,
-          align_mode, align_priors, save_align_priors, resume, executor, scheduler):
+          min_confidence, out, fail_under, progress, quiet, jobs, batch_docs, cache_dir, no_cache,
+          cache_max_mb, align_mode, align_priors, save_align_priors, resume, executor, scheduler):
     """Score a translated document set INPUT (TSV, CSV or JSONL with doc_id, seg_id, source, target).
 
     Writes OUT (one JSON object per document, in input order, each line as soon as it is ready) and OUT's
@@ -122,11 +129,12 @@ def score(input_path, src_lang, tgt_lang, fmt, parser, src_model, tgt_model, src
         raise click.BadParameter("frozen alignment needs a model: give --align-priors FILE",
                                  param_hint="--align-mode")
     if align_mode == "frozen" and save_align_priors:
-        raise click.UsageError("--save-align-priors learns from sampled alignment; it has nothing to learn in "
-                               "--align-mode frozen")
+        raise click.UsageError("--save-align-priors learns from sampled alignment; it has nothing to "
+                               "learn in --align-mode frozen")
     plan = ScoringPlan(
         src_lang, tgt_lang, min_confidence=min_confidence, parser=parser, src_model=src_model,
-        tgt_model=tgt_model, src_conllu=tuple(src_conllu), tgt_conllu=tuple(tgt_conllu), batch_docs=batch_docs,
+        tgt_model=tgt_model, src_conllu=tuple(src_conllu), tgt_conllu=tuple(tgt_conllu),
+        batch_docs=batch_docs,
         cache_dir=None if no_cache else str(cache_dir or default_cache_dir()), cache_max_mb=cache_max_mb,
         align_mode=align_mode, align_priors=align_priors, align_threads=1,
         learn_priors=save_align_priors is not None,
@@ -143,8 +151,9 @@ def score(input_path, src_lang, tgt_lang, fmt, parser, src_model, tgt_model, src
     if not quiet:
         click.echo(summary.table())
         if plan.cache_dir and report.cache_hits + report.parsed:
-            click.echo(f"parse cache: {report.cache_hits} of {report.cache_hits + report.parsed} segment sides "
-                       f"read from {plan.cache_dir}", err=True)
+            sides = report.cache_hits + report.parsed
+            click.echo(f"parse cache: {report.cache_hits} of {sides} segment sides read from "
+                       f"{plan.cache_dir}", err=True)
         if report.resumed_after:
             click.echo(f"resumed: {report.resumed_after} documents were already complete in {out}", err=True)
     if save_align_priors:

@@ -154,7 +154,7 @@ def anchor_alignment(
                 links.add((s.i, t.i))
                 continue
             score = pronoun_pairs.get((pronoun_key(sl), pronoun_key(tl)))
-            if score is not None:
+            if score is not None and _pronoun_like(s) and _pronoun_like(t):
                 pron_cands.append((-score, abs(s.i / ns - t.i / nt), s.i, t.i))
     used_s, used_t = set(), set()
     for _, _, i, j in sorted(pron_cands):
@@ -174,6 +174,11 @@ def anchor_alignment(
             if abs(best.i / ns - t.i / nt) < 0.2:
                 weak.add((best.i, t.i))
     return frozenset(links), frozenset(weak)
+
+
+def _pronoun_like(t) -> bool:
+    """A pronoun, or a possessive determiner; not an article that shares a pronoun's form ("la", "le")."""
+    return t.upos == "PRON" or (t.upos == "DET" and t.feat("Poss") == "Yes")
 
 
 def merge(statistical: Alignment | None, strong: Alignment, weak: Alignment) -> Alignment:
