@@ -150,8 +150,10 @@ class Scorer:
         tgt_mentions = [m for k, p in enumerate(pd.target)
                         for m in extract_mentions(p, k, seg_ids[k], "target", self.tgt_rules, src_names)]
         # Gender agreement helps on the source, which is not being checked; it is off on the target.
-        src_res = resolve_chains(src_mentions, pd.source, "source", use_gender=True)
-        tgt_res = resolve_chains(tgt_mentions, pd.target, "target", use_gender=False)
+        src_res = resolve_chains(src_mentions, pd.source, "source", use_gender=True,
+                                 role_markers=self.src_rules.role_markers)
+        tgt_res = resolve_chains(tgt_mentions, pd.target, "target", use_gender=False,
+                                 role_markers=self.tgt_rules.role_markers)
         links = link_mentions(src_mentions, tgt_mentions, src_res, tgt_res, pd.source, pd.target, alignments,
                               self.lexicon)
         entities, _ = build_entities(src_res, tgt_res, tgt_mentions, links)

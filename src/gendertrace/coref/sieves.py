@@ -83,8 +83,12 @@ def resolve_chains(
     parses: Sequence[ParsedText],
     side: Side,
     use_gender: bool,
+    role_markers: frozenset[str] = frozenset(),
 ) -> Resolution:
-    """Group one side's mentions into chains. `parses` are that side's segments, indexed by Mention.seg."""
+    """Group one side's mentions into chains. `parses` are that side's segments, indexed by Mention.seg.
+
+    `role_markers` are the words that introduce a role held by the subject ("como", "as").
+    """
     ms = sorted(mentions, key=_order)
     cl = _Clusters(ms)
     certainty: dict[str, float] = {}
@@ -110,6 +114,12 @@ def resolve_chains(
             for t in m.tokens:
                 by_seg_head[(m.seg, t)] = m
     for m in ms:
+        # "∅ era la responsable": a zero subject and the person noun predicated of it.
+        if m.kind == "zero":
+            pred = by_seg_head.get((m.seg, m.head))
+            if pred is not None and pred.kind == "noun":
+                try_union(pred, m)
+            continue
         if m.kind not in ("name", "noun"):
             continue
         tok = parses[m.seg].tokens[m.head]
@@ -141,6 +151,20 @@ def resolve_chains(
                 for k in parses[m.seg].children(head.i):
                     if k.deprel == "attr" and (m.seg, k.i) in by_seg_head:
                         try_union(m, by_seg_head[(m.seg, k.i)])
+
+    # Pass 2b: "se incorporó como becaria", "joined as a trainee": the role noun is the clause's subject.
+    if role_markers:
+        for m in ms:
+            if m.kind != "noun":
+                continue
+            verb = _role_marked_verb(parses[m.seg], m.head, role_markers)
+            if verb < 0:
+                continue
+            for c in ms:
+                if c is not m and c.seg == m.seg and c.clause == verb and c.role in ("nsubj", "nsubj:pass") \
+                        and c.pron_type != "possessive":
+                    try_union(c, m)
+                    break
 
     # Pass 3: partial name match: one name's words contained in another's ("Zubelzu" in "Amaia Zubelzu").
     for i, a in enumerate(names):
@@ -247,6 +271,18 @@ def _nonfinite_under(parsed: ParsedText, clause: int) -> int:
 def _unique_container(words: set[str], names: Sequence[Mention], cl: _Clusters) -> bool:
     containers = {cl.find(n.id) for n in names if words < set(n.key.split())}
     return len(containers) <= 1
+
+
+def _role_marked_verb(parsed: ParsedText, head: int, markers: frozenset[str]) -> int:
+    """The verb a role noun depends on through a role marker ("como", "as"), or -1."""
+    t = parsed.tokens[head]
+    if any(k.text.lower() in markers for k in parsed.children(head) if k.deprel in ("case", "mark")):
+        return -1 if t.is_root else t.head
+    if t.deprel == "pobj" and not t.is_root:  # ClearNLP: the noun hangs on the preposition
+        prep = parsed.tokens[t.head]
+        if prep.text.lower() in markers and not prep.is_root:
+            return prep.head
+    return -1
 
 
 def _relative_antecedent(parsed: ParsedText, clause: int) -> int:

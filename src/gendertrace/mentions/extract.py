@@ -458,7 +458,8 @@ def _zero_subjects(parsed, seg, seg_id, side, rules, prefix, quoted=frozenset())
     out = []
     toks = parsed.tokens
     for t in toks:
-        if t.deprel in ("cop", "aux", "aux:pass", "aux:tense", "acl:relcl", "acl", "amod", "case", "mark", "det"):
+        # Relative clauses count: "donde era la responsable" has a zero subject; "que estaba..." has "que".
+        if t.deprel in ("cop", "aux", "aux:pass", "aux:tense", "amod", "case", "mark", "det"):
             continue
         kids = parsed.children(t.i)
         finite = None

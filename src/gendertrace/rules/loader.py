@@ -67,6 +67,7 @@ class LanguageRules:
     invariable_aux: frozenset[str]
     endings: tuple[tuple[str, str | None], ...] = ()
     generic_masculine: frozenset[str] = frozenset()
+    role_markers: frozenset[str] = frozenset()
     expletive_pronouns: frozenset[str] = frozenset()
     expletive_verbs: frozenset[str] = frozenset()
     expletive_clausal_verbs: frozenset[str] = frozenset()
@@ -131,7 +132,7 @@ def _str_list(data: dict, key: str, path: Path, where: str) -> list[str]:
 
 TOP_KEYS = {
     "language", "name", "pro_drop", "possessive_agrees_with", "pronouns", "honorifics", "articles",
-    "agreement", "person_nouns", "expletives",
+    "agreement", "person_nouns", "expletives", "role_markers",
 }
 
 
@@ -244,6 +245,7 @@ def parse_rules(data: Any, path: Path) -> LanguageRules:
         **lists,
         endings=tuple(endings),
         generic_masculine=generic,
+        role_markers=frozenset(w.lower() for w in _str_list({"role_markers": [], **data}, "role_markers", path, "")),
         expletive_pronouns=expl_lists["pronouns"],
         expletive_verbs=expl_lists["verbs"],
         expletive_clausal_verbs=expl_lists["clausal_verbs"],
