@@ -150,10 +150,9 @@ def score(input_path, src_lang, tgt_lang, fmt, parser, src_model, tgt_model, src
     summary = report.summary
     if not quiet:
         click.echo(summary.table())
-        if plan.cache_dir and report.cache_hits + report.parsed:
-            sides = report.cache_hits + report.parsed
-            click.echo(f"parse cache: {report.cache_hits} of {sides} segment sides read from "
-                       f"{plan.cache_dir}", err=True)
+        if plan.cache_dir and report.sides:
+            click.echo(f"parse cache: {report.cache_hits} of {report.sides} segment sides read from "
+                       f"{plan.cache_dir}; {report.parsed} texts parsed", err=True)
         if report.resumed_after:
             click.echo(f"resumed: {report.resumed_after} documents were already complete in {out}", err=True)
     if save_align_priors:

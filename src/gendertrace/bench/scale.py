@@ -1,8 +1,9 @@
-"""The scale section of the benchmark: memory against corpus size, cores, the parse cache, and the dask executor.
+"""The scale section of the benchmark: memory against corpus size, cores, the parse cache, dask.
 
 `scale_section(data_dir)` returns Markdown lines for the benchmark report. Every measurement runs the real
-command line (`python -m gendertrace.cli score ...`) in a fresh subprocess on TSV files written from the parallel
-UD treebank (es -> en), in a temporary folder; the treebank's sentences are never copied into the repository.
+command line (`python -m gendertrace.cli score ...`) in a fresh subprocess on TSV files written from the
+parallel UD treebank (es -> en), in a temporary folder; the treebank's sentences are never copied into the
+repository.
 Figures are ratios between runs made in one sitting on one machine, so they compare like with like; the
 absolute seconds depend on the machine and on whatever else it is running.
 
@@ -115,7 +116,7 @@ def forget_side(cache_dir: Path, signature: str) -> int:
 
 
 def scale_section(data_dir: str | Path) -> list[str]:
-    """Markdown lines of the scale benchmark (a heading, tables and notes); a skip note without the treebank."""
+    """Markdown lines of the scale benchmark (heading, tables, notes); a skip note without the treebank."""
     data_dir = Path(data_dir)
     lines = ["## Scale: streaming, cores, parse cache, dask", ""]
     if not all(pud_path(data_dir, lang).is_file() for lang in DIRECTION):
@@ -166,7 +167,8 @@ def _measure_all(data_dir: Path, tmp: Path) -> list[str]:
     try:
         dask_lines = _dask_runs(tmp, distinct, cache_d, batch, frozen, jobs_2)
     except ImportError:
-        dask_lines = ["dask.distributed is not installed (`pip install 'gendertrace[dask]'`): not measured.", ""]
+        dask_lines = ["dask.distributed is not installed (`pip install 'gendertrace[dask]'`): not measured.",
+                      ""]
 
     def row(what: str, a: float, b: float, target: str, ok: bool) -> str:
         return f"| {what} | {a:.1f} | {b:.1f} | {b / a:.2f} | {target} | {'met' if ok else 'not met'} |"
@@ -174,19 +176,20 @@ def _measure_all(data_dir: Path, tmp: Path) -> list[str]:
     mem_ratio = mem_10.peak_kib / mem_1.peak_kib
     speedup = jobs_1.seconds / jobs_2.seconds
     lines = [
-        f"Direction {DIRECTION[0]}-{DIRECTION[1]}. Corpora: base = the treebank's {n_base} documents; 10x = "
-        f"{n_x10} documents (copies under new ids); distinct = {n_distinct} documents (3 copies, each segment "
-        f"prefixed with its copy number so that the cache cannot serve one copy from another). Every figure is "
-        f"one run of `gendertrace score` in a fresh process; peak memory is the maximum resident set of the "
-        f"process tree (`getrusage`).",
+        f"Direction {DIRECTION[0]}-{DIRECTION[1]}. Corpora: base = the treebank's {n_base} documents; "
+        f"10x = {n_x10} documents (copies under new ids); distinct = {n_distinct} documents (3 copies, each "
+        f"segment prefixed with its copy number so that the cache cannot serve one copy from another). "
+        f"Every figure is one run of `gendertrace score` in a fresh process; peak memory is the maximum "
+        f"resident set of the process tree (`getrusage`).",
         "",
         "| measurement | first (s or MiB) | second | ratio | target | |",
         "|---|---:|---:|---:|---|---|",
         f"| peak memory, 1x vs 10x documents (jobs 1, batches of 50, no cache, frozen alignment) | "
         f"{mem_1.peak_kib / 1024:.0f} | {mem_10.peak_kib / 1024:.0f} | {mem_ratio:.2f} | <= 1.20 | "
         f"{'met' if mem_ratio <= 1.2 else 'not met'} |",
-        f"| time, jobs 1 vs jobs 2 (sampled alignment, cold cache) | {jobs_1.seconds:.1f} | {jobs_2.seconds:.1f} "
-        f"| {speedup:.2f}x faster | >= 1.6x | {'met' if speedup >= 1.6 else 'not met'} |",
+        f"| time, jobs 1 vs jobs 2 (sampled alignment, cold cache) | {jobs_1.seconds:.1f} | "
+        f"{jobs_2.seconds:.1f} | {speedup:.2f}x faster | >= 1.6x | "
+        f"{'met' if speedup >= 1.6 else 'not met'} |",
         row("time, first vs second engine version (sampled, jobs 2, sources cached)", jobs_2.seconds,
             second.seconds, "<= 0.65", second.seconds / jobs_2.seconds <= 0.65),
         row("time, first vs second engine version (frozen, jobs 2, sources cached)", frozen_1.seconds,
@@ -199,8 +202,9 @@ def _measure_all(data_dir: Path, tmp: Path) -> list[str]:
     same_jobs = sorted_lines(tmp / "j1.jsonl") == sorted_lines(tmp / "j2.jsonl")
     lines += [
         f"jobs 1 and jobs 2 results identical: {'yes' if same_jobs else 'no'} "
-        f"({differing_documents(tmp / 'j1.jsonl', tmp / 'j2.jsonl')} of {n_distinct} documents differ; sampled "
-        f"alignment draws from eflomal's own random seed, so two runs with the same settings differ as much).",
+        f"({differing_documents(tmp / 'j1.jsonl', tmp / 'j2.jsonl')} of {n_distinct} documents differ; "
+        f"sampled alignment draws from eflomal's own random seed, so two runs with the same settings differ "
+        f"as much).",
         "",
     ]
     return lines + dask_lines
@@ -237,8 +241,8 @@ def _dask_runs(tmp: Path, distinct: Path, cache_dir: Path, batch: Sequence[str],
         "| executor | seconds | ratio to jobs 2 | target | |",
         "|---|---:|---:|---|---|",
         f"| local, jobs 2 (sampled, cold cache) | {jobs_2.seconds:.1f} | 1.00 | | |",
-        f"| dask LocalCluster, 2 worker processes (sampled, cold cache) | {on_dask.seconds:.1f} | {ratio:.2f} | "
-        f"<= 1.30 | {'met' if ratio <= 1.3 else 'not met'} |",
+        f"| dask LocalCluster, 2 worker processes (sampled, cold cache) | {on_dask.seconds:.1f} | "
+        f"{ratio:.2f} | <= 1.30 | {'met' if ratio <= 1.3 else 'not met'} |",
         f"| local, jobs 2 (frozen, no cache) | {frozen_local.seconds:.1f} | | | |",
         f"| dask LocalCluster (frozen, no cache) | {frozen_dask.seconds:.1f} | "
         f"{frozen_dask.seconds / frozen_local.seconds:.2f} (to frozen local) | | |",

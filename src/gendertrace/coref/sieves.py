@@ -160,6 +160,10 @@ def resolve_chains(
             verb = _role_marked_verb(parses[m.seg], m.head, role_markers)
             if verb < 0:
                 continue
+            holder = by_seg_head.get((m.seg, verb))
+            if holder is not None and holder.kind in ("name", "noun") and holder is not m:
+                try_union(holder, m)  # "la incorporación de Julián Ferrás como secretario": no verb, a name
+                continue
             for c in ms:
                 if c is not m and c.seg == m.seg and c.clause == verb and c.role in ("nsubj", "nsubj:pass") \
                         and c.pron_type != "possessive":
@@ -196,7 +200,7 @@ def resolve_chains(
     nouns = [m for m in ms if m.kind == "noun"]
     for i, a in enumerate(nouns):
         for b in nouns[i + 1:]:
-            if a.key == b.key and cl.find(a.id) != cl.find(b.id):
+            if a.key == b.key and cl.find(a.id) != cl.find(b.id) and not _different_names(cl, a, b):
                 try_union(a, b)
 
     # Pass 6a: a first person inside a quotation is its speaker: the nearest subject outside the quotation in
@@ -271,6 +275,13 @@ def _nonfinite_under(parsed: ParsedText, clause: int) -> int:
 def _unique_container(words: set[str], names: Sequence[Mention], cl: _Clusters) -> bool:
     containers = {cl.find(n.id) for n in names if words < set(n.key.split())}
     return len(containers) <= 1
+
+
+def _different_names(cl: _Clusters, a: Mention, b: Mention) -> bool:
+    """Two clusters that each carry a name, and no name in common: two people who share a role noun."""
+    na = {w for m in cl.members(a.id) if m.kind == "name" for w in m.key.split()}
+    nb = {w for m in cl.members(b.id) if m.kind == "name" for w in m.key.split()}
+    return bool(na) and bool(nb) and not (na & nb)
 
 
 def _role_marked_verb(parsed: ParsedText, head: int, markers: frozenset[str]) -> int:

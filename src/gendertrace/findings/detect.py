@@ -138,7 +138,9 @@ def detect_findings(
                 support = [x for x in source_ev if x.gender == verdict.gender] + [
                     mk for mk in others if mk.gender == verdict.gender]
             conf = verdict.confidence * reach(r)
-            if (conf < min_confidence or verdict.gender not in ("fem", "masc")) and not source_ev and segment_evidence:
+            # Only for words tied to no source person: a linked word's own entity has spoken (even if silently).
+            if ((conf < min_confidence or verdict.gender not in ("fem", "masc")) and not e.source_mentions
+                    and segment_evidence):
                 seg_ev = segment_evidence[r.seg]
                 seg_verdict = resolve_gender(seg_ev) if seg_ev else None
                 if seg_verdict and seg_verdict.gender in ("fem", "masc") and seg_verdict.confidence >= 0.99 * (

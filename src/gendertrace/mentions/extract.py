@@ -153,7 +153,8 @@ def extract_mentions(
 
     # Person nouns the tagger took for something else ("la ingeniera" as a verb) still count after an article.
     noun_like = {t.i for t in toks if rules.is_person_noun(t.text) and not _is_plural(t) and (
-        t.upos in ("NOUN", "PROPN") or (t.i > 0 and rules.article_gender(toks[t.i - 1].text) is not None))}
+        t.upos in ("NOUN", "PROPN") or (t.i > 0 and rules.article_gender(toks[t.i - 1].text) is not None)
+        or (t.i > 1 and toks[t.i - 1].upos == "ADJ" and rules.article_gender(toks[t.i - 2].text) is not None))}
     for t in toks:
         if t.i in used:
             continue
@@ -444,10 +445,18 @@ def _predicate_marks(parsed, i, role, clause, rules, side, seg, seg_id, zero: bo
         for k in kids:
             if k.deprel == "conj" and k.upos in ("ADJ", "VERB") and (k.upos == "ADJ" or k.feat("VerbForm") == "Part"):
                 add(k, "predicative with copula")
-    # Secondary predicates ("quedó sorprendida", "se mostró convencida").
+    # Secondary predicates ("quedó sorprendida", "se mostró convencida", "declaró emocionada"): an adjective
+    # hanging on the verb itself describes the subject, unless the verb has a nominal object it could describe.
     if pred.lemma.lower() in rules.copulas:
         for k in kids:
             if k.deprel == "xcomp" and k.upos in ("ADJ", "VERB") and (k.upos == "ADJ" or k.feat("VerbForm") == "Part"):
+                add(k, "secondary predicate")
+    elif pred.upos == "VERB" and not any(k.deprel in ("obj", "iobj") and k.upos in ("NOUN", "PROPN", "PRON")
+                                         for k in kids):
+        for k in kids:
+            if (k.upos == "ADJ" and k.deprel in ("xcomp", "advcl", "obj", "conj", "dep", "obl")
+                    and not rules.is_person_noun(k.text)
+                    and not any(d.deprel == "det" for d in parsed.children(k.i))):
                 add(k, "secondary predicate")
     return marks
 

@@ -214,8 +214,9 @@ class CachedParser:
         self._parser: Parser | None = None
         self._signature = signature
         self.cache = cache
-        self.hits = 0
-        self.parsed = 0
+        self.asked = 0  # texts asked for
+        self.hits = 0  # of those, answered by the cache
+        self.parsed = 0  # distinct texts handed to the real parser
 
     @property
     def parser(self) -> Parser:
@@ -251,6 +252,7 @@ class CachedParser:
             signature = self.signature()  # loading may have corrected it
             if self.cache:
                 self.cache.put_many(signature, parses)
+        self.asked += len(texts)
         self.hits += sum(p is not None for p in found)
         self.parsed += len(missing)
         return [p if p is not None else fresh[t] for t, p in zip(texts, found, strict=True)]

@@ -38,8 +38,9 @@ class RunReport:
     summary: Summary
     executor: str = ""
     resumed_after: int = 0  # documents already complete in OUT when the run started
-    cache_hits: int = 0  # segment sides answered by the parse cache
-    parsed: int = 0  # segment sides parsed
+    sides: int = 0  # segment sides (sources and targets) scored, pre-parsed CoNLL-U sides aside
+    cache_hits: int = 0  # of those, answered by the parse cache
+    parsed: int = 0  # distinct texts parsed (texts repeated within a batch are parsed once)
     learned: PriorCounts = field(default_factory=PriorCounts)
     priors_written: str | None = None
 
@@ -119,6 +120,7 @@ def score_stream(
                     report.summary.add_stats(stats)
                     if bar is not None:
                         bar.update(1)
+                report.sides += outcome.sides
                 report.cache_hits += outcome.cache_hits
                 report.parsed += outcome.parsed
                 if outcome.learned is not None:

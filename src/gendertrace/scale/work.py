@@ -38,8 +38,9 @@ class BatchOutcome:
     lines: tuple[str, ...]
     stats: tuple[DocumentStats, ...]
     learned: PriorCounts | None = None
-    cache_hits: int = 0
-    parsed: int = 0
+    sides: int = 0  # segment sides the parsers were asked for
+    cache_hits: int = 0  # of those, answered by the parse cache
+    parsed: int = 0  # distinct texts parsed
 
 
 def iter_batches(documents: Iterable[Document], size: int, first: int = 0) -> Iterator[Batch]:
@@ -61,7 +62,7 @@ def iter_batches(documents: Iterable[Document], size: int, first: int = 0) -> It
 def score_batch_with(scorer: Scorer, batch: Batch) -> BatchOutcome:
     """Parse, align and score one batch with the given Scorer."""
     counters = [p for p in (scorer.src_parser, scorer.tgt_parser) if isinstance(p, CachedParser)]
-    hits0, parsed0 = sum(p.hits for p in counters), sum(p.parsed for p in counters)
+    before = [(p.asked, p.hits, p.parsed) for p in counters]
     results = list(scorer.score_parsed_batch(scorer.parse(batch.documents)))
     take = getattr(scorer.statistical_aligner, "take_learned", None)
     return BatchOutcome(
@@ -70,8 +71,9 @@ def score_batch_with(scorer: Scorer, batch: Batch) -> BatchOutcome:
         lines=tuple(json.dumps(r.to_json(), ensure_ascii=False) for r in results),
         stats=tuple(r.stats for r in results),
         learned=take() if take else None,
-        cache_hits=sum(p.hits for p in counters) - hits0,
-        parsed=sum(p.parsed for p in counters) - parsed0,
+        sides=sum(p.asked for p in counters) - sum(b[0] for b in before),
+        cache_hits=sum(p.hits for p in counters) - sum(b[1] for b in before),
+        parsed=sum(p.parsed for p in counters) - sum(b[2] for b in before),
     )
 
 
