@@ -257,7 +257,9 @@ def _is_expletive(parsed: ParsedText, t: Token, rules: LanguageRules) -> bool:
         return False
     head = parsed.tokens[t.head]
     kids = parsed.children(head.i)
-    clausal = any(k.deprel in ("ccomp", "csubj", "xcomp", "advcl") for k in kids)
+    # A clausal complement proper: "il semble que...", "il reste à faire" (not an adverbial clause or participle).
+    clausal = any(k.deprel in ("ccomp", "csubj") or (k.deprel == "xcomp" and k.feat("VerbForm") == "Inf")
+                  for k in kids)
     lemma = head.lemma.lower()
     if lemma in rules.expletive_verbs or (lemma in rules.expletive_clausal_verbs and clausal):
         return True
