@@ -299,7 +299,7 @@ def _role_marked_verb(parsed: ParsedText, head: int, markers: frozenset[str]) ->
 def _relative_antecedent(parsed: ParsedText, clause: int) -> int:
     """The noun a relative clause hangs on, when `clause` is (inside) one; else -1."""
     t = parsed.tokens[clause] if clause >= 0 else None
-    for _ in range(4):
+    for _ in range(8):
         if t is None or t.is_root:
             return -1
         if t.deprel in ("acl:relcl", "relcl"):
