@@ -17,10 +17,10 @@ GOLD = DEMO / "gold"
 HEADER = ["doc_id", "seg_id", "source", "target"]
 FINDINGS_HEADER = ["file", "doc_id", "seg_id", "kind", "start", "end", "text", "expected", "found"]
 KINDS = {"contradiction", "inconsistency", "assumption"}
-GENDERS = {"fem", "masc"}
+GENDERS = {"fem", "masc", "neutral"}  # neutral: a declared non-binary person (entities.yaml)
 SIDES = {"source", "target"}
 # direction -> minimum number of documents
-DIRECTIONS = {"es-en": 6, "en-es": 6, "fr-en": 3, "en-fr": 3, "es-fr": 3}
+DIRECTIONS = {"es-en": 7, "en-es": 7, "fr-en": 3, "en-fr": 3, "es-fr": 3}
 VERSIONS = ("v1", "v2")
 
 

@@ -146,6 +146,19 @@ def explain_document(scorer: Scorer, doc: Document) -> str:
     for s in doc.segments:
         lines.append(f"  [{s.seg_id}] src: {s.source}")
         lines.append(f"  {' ' * (len(s.seg_id) + 2)} tgt: {s.target}")
+    from gendertrace.mentions.extract import neutral_forms
+
+    parsed = scorer.parse([doc])[0]
+    neutral = [f"  [{s.seg_id}] {text!r} ({rule})" for s, p in zip(doc.segments, parsed.target, strict=True)
+               for _, _, text, rule in neutral_forms(p, scorer.tgt_rules)]
+    lines += ["", "neutral forms (target):" if neutral else "neutral forms (target): none"] + neutral
+    lines += ["", "policy:"] + [f"  {x}" for x in scorer.settings.policy.describe()]
+    sheet = scorer.settings.entity_sheet
+    if sheet is not None:
+        lines += ["", f"declared (entity sheet {sheet.path or '-'}, digest {sheet.digest}; "
+                      "declarations outrank "
+                      "all other evidence):"]
+        lines += [f"  {p.name}: {p.describe()}" for p in sheet.persons]
     lines += ["", "chains:"]
     for c in result.chains:
         lines.append(f"  {c.id} ({c.side}): " + " | ".join(
@@ -154,7 +167,8 @@ def explain_document(scorer: Scorer, doc: Document) -> str:
     lines += ["", "entities:"]
     for e in result.entities:
         g = e.gender or "unknown"
-        lines.append(f"  {e.id} {e.label!r}: {g} (confidence {e.confidence:.2f})")
+        declared = f", declared: {' or '.join(e.declared)}" if e.declared else ""
+        lines.append(f"  {e.id} {e.label!r}: {g} (confidence {e.confidence:.2f}{declared})")
         for ev in e.evidence:
             lines.append(f"      {ev.side:<6} [{ev.seg_id}] {ev.text!r:<18} {ev.gender:<5} {ev.kind} "
                          f"({ev.rule}, weight {ev.weight:.2f})")

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import sys
+from dataclasses import replace
 from pathlib import Path
 
 import click
@@ -45,6 +46,45 @@ def _common_options(f):
     for opt in reversed(options):
         f = opt(f)
     return f
+
+
+def _declared_options(f):
+    """--entities, --policy and the policy flags (score and explain)."""
+    options = [
+        click.option("--entities", "entities", type=click.Path(exists=True, dir_okay=False), default=None,
+                     help="Entity sheet (YAML, JSON or CSV, see docs/entities.md): persons with their "
+                          "declared pronouns or gender. Declarations outrank all other evidence."),
+        click.option("--policy", "policy_file", type=click.Path(exists=True, dir_okay=False), default=None,
+                     help="Policy file (YAML, see docs/entities.md): neutral forms, declared non-binary "
+                          "persons, assumption findings, first names."),
+        click.option("--neutral-for-binary", type=click.Choice(["accept", "flag"]), default=None,
+                     help="A neutral target form for a person with binary evidence: accepted, or a finding "
+                          "[default: accept, or the policy file's choice]."),
+        click.option("--assumptions", "assumption_kinds", default=None, metavar="KINDS",
+                     help="Comma-separated entity kinds whose assumption findings are shown: named, roles, "
+                          "other, or 'all'/'none' [default: all]."),
+    ]
+    for opt in reversed(options):
+        f = opt(f)
+    return f
+
+
+def _policy(policy_file, neutral_for_binary, assumption_kinds):
+    from gendertrace.declared.policy import ASSUMPTION_KINDS, Policy, load_policy
+
+    policy = load_policy(policy_file) if policy_file else Policy()
+    if neutral_for_binary:
+        policy = replace(policy, neutral_for_binary=neutral_for_binary)
+    if assumption_kinds is not None:
+        kinds = [k.strip() for k in assumption_kinds.split(",") if k.strip()]
+        kinds = list(ASSUMPTION_KINDS) if kinds == ["all"] else [] if kinds == ["none"] else kinds
+        bad = [k for k in kinds if k not in ASSUMPTION_KINDS]
+        if bad:
+            raise click.BadParameter(f"unknown entity kind {bad[0]!r} "
+                                     "(expected named, roles, other, all or none)",
+                                     param_hint="--assumptions")
+        policy = replace(policy, assumptions=tuple(kinds))
+    return policy
 
 
 @click.group(context_settings={"help_option_names": ["-h", "--help"]})
@@ -101,9 +141,11 @@ def main() -> None:
                    "--scheduler.")
 @click.option("--scheduler", default=None, metavar="ADDRESS",
               help="Address of the dask scheduler, e.g. tcp://10.1.2.3:8786 (with --executor dask).")
+@_declared_options
 def score(input_path, src_lang, tgt_lang, fmt, parser, src_model, tgt_model, src_conllu, tgt_conllu,
           min_confidence, out, fail_under, progress, quiet, jobs, batch_docs, cache_dir, no_cache,
-          cache_max_mb, align_mode, align_priors, save_align_priors, resume, executor, scheduler):
+          cache_max_mb, align_mode, align_priors, save_align_priors, resume, executor, scheduler,
+          entities, policy_file, neutral_for_binary, assumption_kinds):
     """Score a translated document set INPUT (TSV, CSV or JSONL with doc_id, seg_id, source, target).
 
     Writes OUT (one JSON object per document, in input order, each line as soon as it is ready) and OUT's
@@ -131,6 +173,14 @@ def score(input_path, src_lang, tgt_lang, fmt, parser, src_model, tgt_model, src
     if align_mode == "frozen" and save_align_priors:
         raise click.UsageError("--save-align-priors learns from sampled alignment; it has nothing to "
                                "learn in --align-mode frozen")
+    try:
+        policy = _policy(policy_file, neutral_for_binary, assumption_kinds)
+        if entities:
+            from gendertrace.declared.sheet import load_entity_sheet
+
+            load_entity_sheet(entities)  # a bad sheet fails here, with its file, line or key and value
+    except GendertraceError as exc:
+        _fail(exc)
     plan = ScoringPlan(
         src_lang, tgt_lang, min_confidence=min_confidence, parser=parser, src_model=src_model,
         tgt_model=tgt_model, src_conllu=tuple(src_conllu), tgt_conllu=tuple(tgt_conllu),
@@ -139,6 +189,7 @@ def score(input_path, src_lang, tgt_lang, fmt, parser, src_model, tgt_model, src
         align_mode=align_mode, align_priors=align_priors, align_threads=1,
         learn_priors=save_align_priors is not None,
     )
+    plan = replace(plan, entity_sheet=str(Path(entities).resolve()) if entities else None, policy=policy)
     try:
         report = score_file_report(
             input_path, out, plan, fmt=fmt, progress=sys.stderr.isatty() if progress is None else progress,
@@ -171,8 +222,9 @@ def score(input_path, src_lang, tgt_lang, fmt, parser, src_model, tgt_model, src
 @click.argument("input_path", metavar="INPUT", type=click.Path(exists=True, dir_okay=False))
 @click.option("--doc", "doc_id", required=True, help="The document id to explain.")
 @_common_options
+@_declared_options
 def explain(input_path, doc_id, src_lang, tgt_lang, fmt, parser, src_model, tgt_model, src_conllu, tgt_conllu,
-            min_confidence):
+            min_confidence, entities, policy_file, neutral_for_binary, assumption_kinds):
     """Print one document's chains, entities with their evidence, and findings."""
     from gendertrace.api import explain_document
     from gendertrace.io.readers import read_corpus
@@ -182,6 +234,10 @@ def explain(input_path, doc_id, src_lang, tgt_lang, fmt, parser, src_model, tgt_
         if not docs:
             raise click.BadParameter(f"no document {doc_id!r} in {input_path}", param_hint="--doc")
         scorer = _scorer(src_lang, tgt_lang, parser, src_model, tgt_model, src_conllu, tgt_conllu, min_confidence)
+        from gendertrace.declared.sheet import load_entity_sheet
+
+        scorer.settings.policy = _policy(policy_file, neutral_for_binary, assumption_kinds)
+        scorer.settings.entity_sheet = load_entity_sheet(entities) if entities else None
         click.echo(explain_document(scorer, docs[0]))
     except GendertraceError as exc:
         _fail(exc)

@@ -8,8 +8,9 @@ from dataclasses import dataclass
 from pathlib import Path
 
 from gendertrace.api import Summary, score_file
+from gendertrace.declared.sheet import load_entity_sheet
 from gendertrace.errors import InputError
-from gendertrace.pipeline import Scorer
+from gendertrace.pipeline import Scorer, ScoreSettings
 
 
 def demo_dir() -> Path:
@@ -91,6 +92,8 @@ def run_demo(out: Path, corpus: Path | None = None) -> str:
     gold = read_gold(gold_path) if gold_path.is_file() else []
     out.mkdir(parents=True, exist_ok=True)
     scorers: dict[tuple[str, str], Scorer] = {}
+    # The client's entity sheet (declared pronouns), when the corpus has one.
+    sheet = load_entity_sheet(corpus / "entities.yaml") if (corpus / "entities.yaml").is_file() else None
     lines = ["gendertrace demo: findings are aids for a human post-editor, not verdicts.", ""]
     header = f"{'file':<14} {'docs':>4} {'checked':>7} {'consistent':>10} {'rate':>6} {'contra':>6} {'incons':>6} {'assum':>5}"
     lines += [header, "-" * len(header)]
@@ -100,7 +103,7 @@ def run_demo(out: Path, corpus: Path | None = None) -> str:
         direction = path.name.split(".")[0]
         src, tgt = direction.split("-")
         if (src, tgt) not in scorers:
-            scorers[(src, tgt)] = Scorer(src, tgt)
+            scorers[(src, tgt)] = Scorer(src, tgt, ScoreSettings(entity_sheet=sheet))
         res_path = out / (path.stem + ".jsonl")
         s: Summary = score_file(path, res_path, scorers[(src, tgt)])
         rate = "  n/a" if s.rate is None else f"{s.rate:6.3f}"

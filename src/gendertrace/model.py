@@ -134,7 +134,8 @@ class EvidenceItem:
     """A located word (or words) that marks a gender on a mention, and how much it counts.
 
     kind: pronoun, morphology (determiner or noun inflection), agreement (adjective or participle agreeing with
-    the person), lexical (an inherently gendered noun such as mother), title (an honorific), declared.
+    the person), lexical (an inherently gendered noun such as mother), title (an honorific), declared (from
+    the entity sheet: side "source", located at the name it matched), first-name (weak, opt-in).
     """
 
     side: Side
@@ -235,9 +236,10 @@ class Entity:
     label: str = ""
     checked: int = 0  # gendered target references of this entity judged against the evidence
     consistent: int = 0  # of those, the ones that agree with it
+    declared: tuple[str, ...] = ()  # genders the entity sheet accepts for the target forms, preferred first
 
     def to_json(self) -> dict:
-        return {
+        out = {
             "id": self.id,
             "label": self.label,
             "gender": self.gender,
@@ -248,6 +250,9 @@ class Entity:
             "target_mentions": [_mention_json(m) for m in self.target_mentions],
             "evidence": [e.to_json() for e in self.evidence],
         }
+        if self.declared:
+            out["declared"] = list(self.declared)
+        return out
 
 
 def _mention_json(m: Mention) -> dict:

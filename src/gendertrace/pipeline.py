@@ -7,11 +7,14 @@ from dataclasses import dataclass, field, replace
 
 from gendertrace import __version__
 from gendertrace.coref.sieves import resolve_chains
+from gendertrace.declared.apply import apply_declarations
+from gendertrace.declared.policy import Policy
+from gendertrace.declared.sheet import EntitySheet
 from gendertrace.evidence.resolve import build_entities, dedupe
 from gendertrace.findings.detect import detect_findings
 from gendertrace.link.align import anchor_alignment, merge, statistical_alignments
 from gendertrace.link.linker import link_mentions
-from gendertrace.mentions.extract import extract_mentions, name_key
+from gendertrace.mentions.extract import SINGULAR_THEY_RULE, extract_mentions, name_key, singular_they_ok
 from gendertrace.model import Document, DocumentResult, DocumentStats, ParsedDocument, ParsedText
 from gendertrace.parse.base import Parser, get_parser
 from gendertrace.rules import LanguageRules, load_lexicon, load_rules, rules_digest
@@ -27,6 +30,8 @@ class ScoreSettings:
     src_model: str | None = None
     tgt_model: str | None = None
     extra: dict = field(default_factory=dict)
+    entity_sheet: EntitySheet | None = None  # declared pronouns and genders (docs/entities.md)
+    policy: Policy = field(default_factory=Policy)
 
 
 def pronoun_pairs(src: LanguageRules, tgt: LanguageRules) -> dict[tuple[str, str], float]:
@@ -87,6 +92,8 @@ class Scorer:
             "src": f"{self.src_lang}:{self.src_parser.signature()}",
             "tgt": f"{self.tgt_lang}:{self.tgt_parser.signature()}",
             "min_confidence": self.settings.min_confidence,
+            "policy": self.settings.policy.to_json(),
+            "entity_sheet": self.settings.entity_sheet.digest if self.settings.entity_sheet else None,
         }
 
     def parse(self, docs: Sequence[Document]) -> list[ParsedDocument]:
@@ -145,18 +152,26 @@ class Scorer:
         seg_ids = [s.seg_id for s in doc.segments]
         src_names = _person_names(pd.source)
         tgt_names = _person_names(pd.target)
+        sheet = self.settings.entity_sheet
+        if sheet is not None:
+            # Declared names count as names on both sides, whatever the NER says.
+            src_names |= sheet.name_keys
+            tgt_names |= sheet.name_keys
         src_mentions = [m for k, p in enumerate(pd.source)
                         for m in extract_mentions(p, k, seg_ids[k], "source", self.src_rules, tgt_names)]
         tgt_mentions = [m for k, p in enumerate(pd.target)
                         for m in extract_mentions(p, k, seg_ids[k], "target", self.tgt_rules, src_names)]
         # Gender agreement helps on the source, which is not being checked; it is off on the target.
-        src_res = resolve_chains(src_mentions, pd.source, "source", use_gender=True,
-                                 role_markers=self.src_rules.role_markers)
-        tgt_res = resolve_chains(tgt_mentions, pd.target, "target", use_gender=False,
-                                 role_markers=self.tgt_rules.role_markers)
+        src_mentions, src_res = _chains_with_singular_they(src_mentions, pd.source, "source", True,
+                                                           self.src_rules.role_markers)
+        tgt_mentions, tgt_res = _chains_with_singular_they(tgt_mentions, pd.target, "target", False,
+                                                           self.tgt_rules.role_markers)
         links = link_mentions(src_mentions, tgt_mentions, src_res, tgt_res, pd.source, pd.target, alignments,
                               self.lexicon)
         entities, _ = build_entities(src_res, tgt_res, tgt_mentions, links)
+        if sheet is not None or self.settings.policy.first_names:
+            entities = apply_declarations(entities, sheet, self.src_lang, self.tgt_lang, seg_ids,
+                                          self.settings.policy.first_names)
         # Per source segment, the gender marks of its person mentions (clitics that may stand for things aside).
         segment_evidence: list[list] = [[] for _ in doc.segments]
         for m in src_mentions:
@@ -165,12 +180,30 @@ class Scorer:
         segment_evidence = [list(dedupe(ev)) for ev in segment_evidence]
         findings, stats, per_entity = detect_findings(
             entities, links, [s.target for s in doc.segments], seg_ids, tgt_res.certainty,
-            self.settings.min_confidence, tgt_res.chain_of, segment_evidence,
+            self.settings.min_confidence, tgt_res.chain_of, segment_evidence, self.settings.policy,
         )
         entities = [replace(e, checked=per_entity.get(e.id, (0, 0))[0], consistent=per_entity.get(e.id, (0, 0))[1])
                     for e in entities]
         return DocumentResult(doc.doc_id, self.src_lang, self.tgt_lang, tuple(entities), tuple(findings), stats,
                               tuple(src_res.chains) + tuple(tgt_res.chains))
+
+
+def _chains_with_singular_they(mentions, parses, side, use_gender, role_markers):
+    """Chains of one side; a 'they' stays a mention (of one person, neutral) only where its chain shows a
+    singular antecedent, else it is plural they and leaves the chains are resolved again without it."""
+    res = resolve_chains(mentions, parses, side, use_gender=use_gender, role_markers=role_markers)
+    candidates = [m for m in mentions if any(mk.rule == SINGULAR_THEY_RULE for mk in m.marks)]
+    if not candidates:
+        return mentions, res
+    members: dict[str, list] = {}
+    for c in res.chains:
+        members[c.id] = list(c.mentions)
+    drop = {m.id for m in candidates if not singular_they_ok(m, members.get(res.chain_of.get(m.id, ""), []),
+                                                             list(parses))}
+    if not drop:
+        return mentions, res
+    kept = [m for m in mentions if m.id not in drop]
+    return kept, resolve_chains(kept, parses, side, use_gender=use_gender, role_markers=role_markers)
 
 
 def _person_names(parses: Sequence[ParsedText]) -> set[str]:

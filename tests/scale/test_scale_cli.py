@@ -43,16 +43,16 @@ def test_saving_priors_from_the_frozen_model_is_refused(tmp_path):
 @pytest.mark.slow
 def test_the_cache_line_and_the_priors_line_report_what_happened(tmp_path):
     inp = demo_copies(tmp_path / "twice.tsv", 2)
-    args = ("--cache", str(tmp_path / "cache"), "--batch-docs", "12", "--save-align-priors",
+    args = ("--cache", str(tmp_path / "cache"), "--batch-docs", "14", "--save-align-priors",
             str(tmp_path / "es-en.priors"), "--jobs", "1")
     first = _score(tmp_path, *args, inp=inp)
     assert first.exit_code == 0, first.output
-    # Two copies of 45 segment pairs: 180 segment sides, of which 90 distinct texts, parsed once each.
-    assert "parse cache: 0 of 180 segment sides read from" in first.stderr
-    assert "; 90 texts parsed" in first.stderr
-    assert "alignment priors learned from 90 segment pairs" in first.stderr
+    # Two copies of 51 segment pairs: 204 segment sides, of which 102 distinct texts, parsed once each.
+    assert "parse cache: 0 of 204 segment sides read from" in first.stderr
+    assert "; 102 texts parsed" in first.stderr
+    assert "alignment priors learned from 102 segment pairs" in first.stderr
     second = _score(tmp_path, "--cache", str(tmp_path / "cache"), "--jobs", "1", inp=inp)
-    assert "parse cache: 180 of 180 segment sides" in second.stderr
+    assert "parse cache: 204 of 204 segment sides" in second.stderr
     assert "; 0 texts parsed" in second.stderr
 
 

@@ -37,7 +37,7 @@ def test_resume_repairs_a_torn_line_and_finishes_the_run(tmp_path):
     report = score_file_report(inp, cut, plan, resume=True)
     assert report.resumed_after == 3
     assert cut.read_bytes() == whole.read_bytes()
-    assert report.summary.documents == 6  # the summary covers the kept results too
+    assert report.summary.documents == 7  # the summary covers the kept results too
 
 
 def test_resuming_a_finished_run_writes_nothing_more(tmp_path):
@@ -46,7 +46,7 @@ def test_resuming_a_finished_run_writes_nothing_more(tmp_path):
     score_file(DEMO / "es-en.v1.tsv", out, plan)
     before = out.read_bytes()
     report = score_file_report(DEMO / "es-en.v1.tsv", out, plan, resume=True)
-    assert report.resumed_after == 6
+    assert report.resumed_after == 7
     assert out.read_bytes() == before
 
 
@@ -79,7 +79,7 @@ def _score_cmd(inp: Path, out: Path, cache: Path, *extra: str) -> list[str]:
 
 
 def test_a_run_killed_mid_way_resumes_to_the_uninterrupted_result(tmp_path):
-    inp = demo_copies(tmp_path / "many.tsv", 15)  # 90 documents
+    inp = demo_copies(tmp_path / "many.tsv", 15)  # 105 documents
     whole, killed = tmp_path / "whole.jsonl", tmp_path / "killed.jsonl"
     score_file(inp, whole, _plan(tmp_path, batch_docs=1))
 
@@ -96,7 +96,7 @@ def test_a_run_killed_mid_way_resumes_to_the_uninterrupted_result(tmp_path):
     proc.wait(30)
     assert proc.returncode == -signal.SIGKILL
     done = killed.read_bytes().count(b"\n")
-    assert 5 <= done < 90
+    assert 5 <= done < 105
     signature = json.loads(Path(str(killed) + ".signature.json").read_text(encoding="utf-8"))
     assert signature["state"] == "incomplete"
 
@@ -104,4 +104,4 @@ def test_a_run_killed_mid_way_resumes_to_the_uninterrupted_result(tmp_path):
                              text=True, timeout=300)
     assert resumed.returncode == 0, resumed.stderr
     assert killed.read_bytes() == whole.read_bytes()
-    assert len(doc_ids(killed)) == len(set(doc_ids(killed))) == 90
+    assert len(doc_ids(killed)) == len(set(doc_ids(killed))) == 105

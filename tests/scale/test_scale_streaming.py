@@ -48,7 +48,7 @@ def test_each_batch_is_written_before_the_next_one_is_scored(tmp_path, monkeypat
 
     monkeypatch.setattr(executors, "score_batch_with", spy)
     score_file(V1, out, _plan(tmp_path, batch_docs=2))
-    assert seen == [(0, 0), (2, 2), (4, 4)]  # six demo documents in batches of two
+    assert seen == [(0, 0), (2, 2), (4, 4), (6, 6)]  # seven demo documents in batches of two
 
 
 def test_rows_of_one_document_apart_are_gathered_as_the_input_contract_allows(tmp_path):
@@ -102,14 +102,14 @@ def test_a_second_engine_version_parses_only_its_new_targets(tmp_path):
 
 
 def test_the_frozen_alignment_model_does_not_depend_on_the_batch_size(tmp_path):
-    inp = demo_copies(tmp_path / "twice.tsv", 2)  # 12 documents, 90 segments: one batch eflomal trains on
+    inp = demo_copies(tmp_path / "twice.tsv", 2)  # 14 documents, 102 segments: one batch eflomal trains on
     priors = tmp_path / "es-en.priors"
-    plan = _plan(tmp_path, batch_docs=12, learn_priors=True)
+    plan = _plan(tmp_path, batch_docs=14, learn_priors=True)
     learnt = score_file_report(inp, tmp_path / "learn.jsonl", plan, save_align_priors=priors)
-    assert learnt.learned.sentences == 90 and priors.is_file()
+    assert learnt.learned.sentences == 102 and priors.is_file()
     frozen = {"align_mode": "frozen", "align_priors": str(priors)}
     score_file(inp, tmp_path / "one.jsonl", _plan(tmp_path, batch_docs=1, **frozen))
-    score_file(inp, tmp_path / "all.jsonl", _plan(tmp_path, batch_docs=12, **frozen))
+    score_file(inp, tmp_path / "all.jsonl", _plan(tmp_path, batch_docs=14, **frozen))
     assert (tmp_path / "one.jsonl").read_bytes() == (tmp_path / "all.jsonl").read_bytes()
 
 
@@ -119,5 +119,5 @@ def test_the_signature_records_the_batching_and_the_alignment(tmp_path):
     signature = json.loads(Path(str(out) + ".signature.json").read_text(encoding="utf-8"))
     assert signature["batch_docs"] == 3
     assert signature["alignment"] == "eflomal sampled per batch"
-    assert signature["documents"] == 6
+    assert signature["documents"] == 7
     assert "state" not in signature  # the run finished

@@ -13,6 +13,7 @@ from dataclasses import dataclass, replace
 
 import math
 
+from gendertrace.declared.policy import Policy
 from gendertrace.evidence.resolve import STRENGTH_SCALE, resolve_gender
 from gendertrace.model import DocumentStats, Entity, EvidenceItem, Finding, Link, Mention
 
@@ -77,6 +78,7 @@ def detect_findings(
     min_confidence: float = 0.5,
     target_chain_of: dict[str, str] | None = None,
     segment_evidence: Sequence[Sequence[EvidenceItem]] | None = None,
+    policy: Policy | None = None,
 ) -> tuple[list[Finding], DocumentStats, dict[str, tuple[int, int]]]:
     """Check every gendered target reference of every entity against the rest of the document's evidence.
 
@@ -86,8 +88,11 @@ def detect_findings(
     speaks. Where neither settles it, a source segment whose person words all have one gender speaks for the
     target words of that segment (less surely: the word may be about someone the segment does not name). An
     entity whose source is silent and whose target commits to one gender gets one assumption.
+    A person declared on the entity sheet is judged against the declaration alone (every target form, neutral
+    ones included); neutral target forms elsewhere follow the policy's neutral_for_binary.
     Returns the findings, the document's statistics, and per entity id its (checked, consistent) counts.
     """
+    policy = policy or Policy()
     findings: list[Finding] = []
     total_refs = checked = consistent = 0
     per_entity: dict[str, tuple[int, int]] = {}
@@ -98,26 +103,48 @@ def detect_findings(
         for e in entities:
             for m in e.target_mentions:
                 if certainty.get(m.id, 1.0) >= 1.0:
-                    chain_refs.setdefault(target_chain_of[m.id], []).extend(target_references(m, target_texts[m.seg]))
+                    chain_refs.setdefault(target_chain_of[m.id], []).extend(
+                        r for r in target_references(m, target_texts[m.seg]) if r.gender in ("fem", "masc"))
     for e in entities:
         refs: dict[tuple[int, int, int], Reference] = {}
         for m in e.target_mentions:
             for r in target_references(m, target_texts[m.seg]):
                 refs.setdefault((r.seg, r.start, r.end), r)
-        ordered = sorted(refs.values(), key=lambda r: (r.seg, r.start))
-        ordered = [r for r in ordered if r.gender in ("fem", "masc") and _checkable(r.mention, links, e)
-                   and not _unmarked_only(r)]
-        total_refs += len(ordered)
-        if not ordered:
-            continue
-        source_ev = [x for x in e.evidence if x.side == "source"]
-        source_verdict = resolve_gender(source_ev) if source_ev else None
+        every = sorted(refs.values(), key=lambda r: (r.seg, r.start))
+        every = [r for r in every if _checkable(r.mention, links, e) and not _unmarked_only(r)]
+        ordered = [r for r in every if r.gender in ("fem", "masc")]
+        neutral_refs = [r for r in every if r.gender == "neutral"]
 
         def reach(r: Reference) -> float:
             # A direct link says how surely the word is about this person; the target chain matters only
             # where the link was inherited through it (and its certainty is already in the link's confidence).
             link = links.get(r.mention.id)
             return link.confidence if link else certainty.get(r.mention.id, 1.0)
+
+        if e.declared:
+            n_checked, n_consistent = _judge_declared(e, every, reach, policy, min_confidence, seg_ids,
+                                                      findings)
+            total_refs += len(every)
+            checked += n_checked
+            consistent += n_consistent
+            per_entity[e.id] = (n_checked, n_consistent)
+            continue
+        source_ev = [x for x in e.evidence if x.side == "source"]
+        source_verdict = resolve_gender(source_ev) if source_ev else None
+        if neutral_refs and policy.neutral_for_binary == "flag":
+            # A neutral form where the evidence settles a binary gender: a finding only if the client says so.
+            base = source_verdict if source_verdict and source_verdict.confidence >= SOURCE_DECISIVE else None
+            if base and base.gender in ("fem", "masc"):
+                for r in neutral_refs:
+                    conf = base.confidence * reach(r)
+                    if conf >= min_confidence:
+                        total_refs += 1
+                        checked += 1
+                        findings.append(_finding("contradiction", r, base.gender, e, conf,
+                                                 [x for x in source_ev if x.gender == base.gender], seg_ids))
+        total_refs += len(ordered)
+        if not ordered:
+            continue
 
         judged = 0
         consistent_before = consistent
@@ -157,7 +184,9 @@ def detect_findings(
             expected = verdict.gender if kind == "contradiction" else None
             findings.append(_finding(kind, r, expected, e, conf, support, seg_ids))
         per_entity[e.id] = (judged, consistent - consistent_before)
-        if not source_ev and judged == 0:
+        # A source that only uses neutral forms ("they") does not speak to a binary gender either.
+        binary_source = any(x.gender in ("fem", "masc") for x in source_ev)
+        if not binary_source and judged == 0 and _entity_kind(e) in policy.assumptions:
             r = ordered[0]
             findings.append(_finding("assumption", r, None, e, 0.5 * reach(r), (), seg_ids))
     findings.sort(key=lambda f: (f.seg, f.start))
@@ -167,6 +196,38 @@ def detect_findings(
         consistent=consistent, findings=counts,
     )
     return findings, stats, per_entity
+
+
+def _judge_declared(e: Entity, refs: Sequence[Reference], reach, policy: Policy, min_confidence: float,
+                    seg_ids, findings: list[Finding]) -> tuple[int, int]:
+    """Every target form of a declared person against the declaration; returns (checked, consistent)."""
+    declared = [x for x in e.evidence if x.kind == "declared"]
+    strength = resolve_gender(declared).confidence
+    n_checked = n_consistent = 0
+    flagged: list[Reference] = []
+    for r in refs:
+        if any(f.seg == r.seg and f.start < r.end and r.start < f.end for f in flagged):
+            continue  # "el diseñador" and its noun as a predicate: one word group, one finding
+        if r.gender in e.declared:
+            n_checked += 1
+            n_consistent += 1
+            continue
+        if e.declared == ("neutral",) and not policy.gendered_for_nonbinary:
+            continue  # the client accepts gendered forms for this person
+        conf = strength * reach(r)
+        if conf < min_confidence:
+            continue
+        n_checked += 1
+        flagged.append(r)
+        findings.append(_finding("contradiction", r, e.declared[0], e, conf, declared, seg_ids,
+                                 basis="the entity sheet declares"))
+    return n_checked, n_consistent
+
+
+def _entity_kind(e: Entity) -> str:
+    """named (a person name among its mentions), roles (a role noun), or other (pronouns only)."""
+    kinds = {m.kind for m in tuple(e.source_mentions) + tuple(e.target_mentions)}
+    return "named" if "name" in kinds else "roles" if "noun" in kinds else "other"
 
 
 def _unmarked_only(r: Reference) -> bool:
@@ -189,10 +250,11 @@ def _first_index(refs: Sequence[Reference], gender: str) -> int:
     return next(k for k, r in enumerate(refs) if r.gender == gender)
 
 
-def _finding(kind, r: Reference, expected, e: Entity, conf: float, support, seg_ids) -> Finding:
+def _finding(kind, r: Reference, expected, e: Entity, conf: float, support, seg_ids,
+             basis: str = "the source says") -> Finding:
     found = r.gender
     if kind == "contradiction":
-        msg = f"{r.text!r} makes {e.label or e.id} {found}; the source says {expected}"
+        msg = f"{r.text!r} makes {e.label or e.id} {found}; {basis} {expected}"
     elif kind == "inconsistency":
         msg = f"{r.text!r} makes {e.label or e.id} {found}; elsewhere the target says otherwise"
     else:

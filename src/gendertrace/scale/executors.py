@@ -12,6 +12,7 @@ import os
 from collections import deque
 from collections.abc import Callable, Iterable, Iterator
 from concurrent.futures import ProcessPoolExecutor
+from dataclasses import replace
 
 from gendertrace.errors import GendertraceError
 from gendertrace.scale.plan import ScoringPlan, scorer_for
@@ -73,7 +74,9 @@ class ProcessExecutor:
     """Batches in `jobs` spawned worker processes on this machine; each builds its Scorer once."""
 
     def __init__(self, plan: ScoringPlan, jobs: int) -> None:
-        self.plan, self.workers = plan, jobs
+        # One core per worker: eflomal would otherwise start a thread per core in every worker.
+        self.plan = plan if plan.align_threads else replace(plan, align_threads=1)
+        self.workers = jobs
 
     def describe(self) -> str:
         return f"{self.workers} worker processes"
@@ -94,12 +97,14 @@ class DaskExecutor:
     """Batches as tasks on a dask.distributed cluster, reached at `address` (e.g. tcp://host:8786).
 
     Every worker must have gendertrace and the language pipelines installed; each worker process builds its
-    Scorer on its first task and keeps it. Documents and outcomes travel pickled between the client and the
+    Scorer on its first task, keeps it, and scores one batch at a time (start workers with one thread and
+    as many processes as cores). Documents and outcomes travel pickled between the client and the
     cluster, as dask sends all task data: use it on a cluster you trust.
     """
 
     def __init__(self, plan: ScoringPlan, address: str, timeout: float = 30.0) -> None:
-        self.plan, self.address, self.timeout = plan, address, timeout
+        self.plan = plan if plan.align_threads else replace(plan, align_threads=1)
+        self.address, self.timeout = address, timeout
         self.workers = 0
 
     def describe(self) -> str:

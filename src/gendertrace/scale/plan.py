@@ -9,6 +9,8 @@ from __future__ import annotations
 from dataclasses import dataclass
 from functools import partial
 
+from gendertrace.declared.policy import Policy
+from gendertrace.declared.sheet import load_entity_sheet
 from gendertrace.parse.base import Parser, get_parser
 from gendertrace.parse.cache import CachedParser, ParseCache, known_signature
 from gendertrace.pipeline import Scorer, ScoreSettings
@@ -37,6 +39,8 @@ class ScoringPlan:
     align_priors: str | None = None
     align_threads: int | None = None  # OpenMP threads of eflomal in each worker (None: eflomal's default)
     learn_priors: bool = False
+    entity_sheet: str | None = None  # path of the entity sheet (declared pronouns), read by each worker
+    policy: Policy = Policy()
 
     def __post_init__(self) -> None:
         if self.batch_docs < 1:
@@ -51,7 +55,9 @@ def build_scorer(plan: ScoringPlan) -> Scorer:
     """A Scorer for the plan. spaCy pipelines load on the first text the cache cannot answer, not before."""
     cache = ParseCache(plan.cache_dir, plan.cache_max_mb) if plan.cache_dir else None
     settings = ScoreSettings(min_confidence=plan.min_confidence, batch_size=plan.batch_docs,
-                             parser=plan.parser, src_model=plan.src_model, tgt_model=plan.tgt_model)
+                             parser=plan.parser, src_model=plan.src_model, tgt_model=plan.tgt_model,
+                             entity_sheet=load_entity_sheet(plan.entity_sheet) if plan.entity_sheet else None,
+                             policy=plan.policy)
     src = _side_parser(plan.src_lang, plan.parser, plan.src_model, plan.src_conllu, cache)
     tgt = _side_parser(plan.tgt_lang, plan.parser, plan.tgt_model, plan.tgt_conllu, cache)
     scorer = Scorer(plan.src_lang, plan.tgt_lang, settings, src, tgt)

@@ -7,6 +7,7 @@ input) depends only on the input and the batch size, never on how many processes
 from __future__ import annotations
 
 import json
+import threading
 from collections.abc import Iterable, Iterator
 from dataclasses import dataclass
 
@@ -77,10 +78,16 @@ def score_batch_with(scorer: Scorer, batch: Batch) -> BatchOutcome:
     )
 
 
+# A Scorer (its pipelines, its cache connection) serves one batch at a time; a cluster worker that runs
+# several threads therefore scores its batches one after another.
+_ONE_AT_A_TIME = threading.Lock()
+
+
 def score_batch(plan: ScoringPlan, batch: Batch) -> BatchOutcome:
     """Score one batch in this process with the plan's Scorer (the task workers and cluster nodes run)."""
     try:
-        return score_batch_with(scorer_for(plan), batch)
+        with _ONE_AT_A_TIME:
+            return score_batch_with(scorer_for(plan), batch)
     except GendertraceError as exc:
         # Some of the tool's errors take several constructor arguments and would not survive pickling.
         first, last = batch.documents[0].doc_id, batch.documents[-1].doc_id
