@@ -35,8 +35,19 @@ def read_gold(path: Path) -> list[GoldFinding]:
     with open(path, encoding="utf-8", newline="") as f:
         for line, row in enumerate(csv.DictReader(f, delimiter="\t"), 2):
             try:
-                out.append(GoldFinding(row["file"], row["doc_id"], row["seg_id"], row["kind"], int(row["start"]),
-                                       int(row["end"]), row["text"], row["expected"] or None, row["found"] or None))
+                out.append(
+                    GoldFinding(
+                        row["file"],
+                        row["doc_id"],
+                        row["seg_id"],
+                        row["kind"],
+                        int(row["start"]),
+                        int(row["end"]),
+                        row["text"],
+                        row["expected"] or None,
+                        row["found"] or None,
+                    )
+                )
             except (KeyError, ValueError) as exc:
                 raise InputError(str(path), line, f"bad gold row: {exc}") from exc
     return out
@@ -95,7 +106,8 @@ def run_demo(out: Path, corpus: Path | None = None) -> str:
     # The client's entity sheet (declared pronouns), when the corpus has one.
     sheet = load_entity_sheet(corpus / "entities.yaml") if (corpus / "entities.yaml").is_file() else None
     lines = ["gendertrace demo: findings are aids for a human post-editor, not verdicts.", ""]
-    header = f"{'file':<14} {'docs':>4} {'checked':>7} {'consistent':>10} {'rate':>6} {'contra':>6} {'incons':>6} {'assum':>5}"
+    header = (f"{'file':<14} {'docs':>4} {'checked':>7} {'consistent':>10} {'rate':>6} {'contra':>6} "
+              f"{'incons':>6} {'assum':>5}")
     lines += [header, "-" * len(header)]
     system: list[tuple] = []
     by_direction: dict[str, list[tuple]] = defaultdict(list)
@@ -107,8 +119,10 @@ def run_demo(out: Path, corpus: Path | None = None) -> str:
         res_path = out / (path.stem + ".jsonl")
         s: Summary = score_file(path, res_path, scorers[(src, tgt)])
         rate = "  n/a" if s.rate is None else f"{s.rate:6.3f}"
-        lines.append(f"{path.name:<14} {s.documents:>4} {s.checked:>7} {s.consistent:>10} {rate:>6} "
-                     f"{s.findings['contradiction']:>6} {s.findings['inconsistency']:>6} {s.findings['assumption']:>5}")
+        lines.append(
+            f"{path.name:<14} {s.documents:>4} {s.checked:>7} {s.consistent:>10} {rate:>6} "
+            f"{s.findings['contradiction']:>6} {s.findings['inconsistency']:>6} {s.findings['assumption']:>5}"
+        )
         with open(res_path, encoding="utf-8") as f:
             for line in f:
                 doc = json.loads(line)
@@ -119,16 +133,22 @@ def run_demo(out: Path, corpus: Path | None = None) -> str:
     if gold:
         lines += ["", "agreement with the reviewers' gold (contradiction findings; all engine versions):", ""]
         lines.append(f"{'direction':<10} {'gold':>5} {'found':>6} {'precision':>9} {'recall':>7}")
-        for direction in sorted(by_direction.keys() | {g.file.split('.')[0] for g in gold}):
+        for direction in sorted(by_direction.keys() | {g.file.split(".")[0] for g in gold}):
             g = [x for x in gold if x.file.split(".")[0] == direction]
             a = compare(by_direction.get(direction, []), g, "contradiction")
-            lines.append(f"{direction:<10} {a.gold:>5} {a.system:>6} {_fmt(a.precision):>9} {_fmt(a.recall):>7}")
+            lines.append(
+                f"{direction:<10} {a.gold:>5} {a.system:>6} {_fmt(a.precision):>9} {_fmt(a.recall):>7}"
+            )
         total = compare(system, gold, "contradiction")
-        lines.append(f"{'all':<10} {total.gold:>5} {total.system:>6} {_fmt(total.precision):>9} "
-                     f"{_fmt(total.recall):>7}")
+        lines.append(
+            f"{'all':<10} {total.gold:>5} {total.system:>6} {_fmt(total.precision):>9} "
+            f"{_fmt(total.recall):>7}"
+        )
         inc = compare(system, gold, "inconsistency")
-        lines.append(f"(inconsistency: gold {inc.gold}, found {inc.system}, precision {_fmt(inc.precision).strip()}, "
-                     f"recall {_fmt(inc.recall).strip()})")
+        lines.append(
+            f"(inconsistency: gold {inc.gold}, found {inc.system}, precision {_fmt(inc.precision).strip()}, "
+            f"recall {_fmt(inc.recall).strip()})"
+        )
     # The two engine versions go into a history store, compared with their statistics.
     from gendertrace.history.demo import record_demo
 

@@ -121,7 +121,7 @@ def run_direction(data: Path, direction: str, seed: int) -> DirectionResult:
         res.base_on_error += sum(
             1 for b in base if b.seg_id == seg_id and b.start < c.end and c.start < b.end
         )
-    for lo, hi in zip(BINS, BINS[1:]):
+    for lo, hi in zip(BINS, BINS[1:], strict=False):
         inside = [ok for conf, ok in scored if lo <= conf < hi]
         res.calibration.append((lo, min(hi, 1.0), len(inside), sum(inside)))
     return res

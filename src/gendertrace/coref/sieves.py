@@ -103,7 +103,7 @@ def resolve_chains(
     names = [m for m in ms if m.kind == "name"]
     # Pass 1: exact name match.
     for i, a in enumerate(names):
-        for b in names[i + 1:]:
+        for b in names[i + 1 :]:
             if a.key == b.key:
                 try_union(a, b)
 
@@ -165,14 +165,19 @@ def resolve_chains(
                 try_union(holder, m)  # "la incorporación de Julián Ferrás como secretario": no verb, a name
                 continue
             for c in ms:
-                if c is not m and c.seg == m.seg and c.clause == verb and c.role in ("nsubj", "nsubj:pass") \
-                        and c.pron_type != "possessive":
+                if (
+                    c is not m
+                    and c.seg == m.seg
+                    and c.clause == verb
+                    and c.role in ("nsubj", "nsubj:pass")
+                    and c.pron_type != "possessive"
+                ):
                     try_union(c, m)
                     break
 
     # Pass 3: partial name match: one name's words contained in another's ("Zubelzu" in "Amaia Zubelzu").
     for i, a in enumerate(names):
-        for b in names[i + 1:]:
+        for b in names[i + 1 :]:
             if cl.find(a.id) == cl.find(b.id):
                 continue
             wa, wb = set(a.key.split()), set(b.key.split())
@@ -199,7 +204,7 @@ def resolve_chains(
     # Pass 5: role-noun head match ("la ministra ... la ministra").
     nouns = [m for m in ms if m.kind == "noun"]
     for i, a in enumerate(nouns):
-        for b in nouns[i + 1:]:
+        for b in nouns[i + 1 :]:
             if a.key == b.key and cl.find(a.id) != cl.find(b.id) and not _different_names(cl, a, b):
                 try_union(a, b)
 
@@ -208,8 +213,15 @@ def resolve_chains(
     for m in ms:
         if m.person != "1" or not m.quoted:
             continue
-        speakers = [c for c in ms if c.seg == m.seg and not c.quoted and c.person != "1"
-                    and c.role in ("nsubj", "nsubj:pass") and c.pron_type != "possessive"]
+        speakers = [
+            c
+            for c in ms
+            if c.seg == m.seg
+            and not c.quoted
+            and c.person != "1"
+            and c.role in ("nsubj", "nsubj:pass")
+            and c.pron_type != "possessive"
+        ]
         if speakers:
             best = min(speakers, key=lambda c: abs(c.head - m.head))
             if try_union(best, m):
@@ -266,7 +278,8 @@ def _nonfinite_under(parsed: ParsedText, clause: int) -> int:
         return -1
     t = parsed.tokens[clause]
     finite = t.feat("VerbForm") == "Fin" or any(
-        k.feat("VerbForm") == "Fin" for k in parsed.children(clause) if k.deprel in ("aux", "cop", "aux:pass"))
+        k.feat("VerbForm") == "Fin" for k in parsed.children(clause) if k.deprel in ("aux", "cop", "aux:pass")
+    )
     if finite or t.is_root or t.deprel not in ("xcomp", "ccomp", "advcl"):
         return -1
     return t.head
@@ -331,8 +344,13 @@ def _pick_antecedent(m, ms, cl, parses, use_gender):
     scored: dict[str, tuple[float, Mention]] = {}
     for c in ms:
         # A possessive may point forward to the subject of its own clause ("Por su parte, la ingeniera...").
-        cataphoric = (m.pron_type == "possessive" and c.seg == m.seg and c.clause == m.clause
-                      and c.role in ("nsubj", "nsubj:pass") and c.kind in ("name", "noun"))
+        cataphoric = (
+            m.pron_type == "possessive"
+            and c.seg == m.seg
+            and c.clause == m.clause
+            and c.role in ("nsubj", "nsubj:pass")
+            and c.kind in ("name", "noun")
+        )
         if (_order(c) >= _order(m) and not cataphoric) or m.seg - c.seg > PRONOUN_WINDOW:
             continue
         if c.kind == "pronoun" and c.pron_type == "possessive" and c.seg == m.seg:
@@ -343,15 +361,28 @@ def _pick_antecedent(m, ms, cl, parses, use_gender):
             continue
         # Binding: a non-reflexive personal pronoun does not corefer with the subject of its own clause, nor,
         # as the subject of a non-finite clause ("allowed her to stay"), with the subject of the clause above.
-        if m.kind == "pronoun" and m.pron_type == "personal" and c.seg == m.seg and c.role in ("nsubj", "nsubj:pass"):
+        if (
+            m.kind == "pronoun"
+            and m.pron_type == "personal"
+            and c.seg == m.seg
+            and c.role in ("nsubj", "nsubj:pass")
+        ):
             if m.role not in ("nsubj", "nsubj:pass") and c.clause == m.clause:
                 continue
-            if m.role in ("nsubj", "nsubj:pass") and _nonfinite_under(parses[m.seg], m.clause) == c.clause >= 0:
+            if (
+                m.role in ("nsubj", "nsubj:pass")
+                and _nonfinite_under(parses[m.seg], m.clause) == c.clause >= 0
+            ):
                 continue
         # Binding principle C: a subject (overt or zero) does not corefer with a name or noun inside its own
         # clause ("∅ dijo [que el sospechoso...]", "he said John...").
-        if (m.role in ("nsubj", "nsubj:pass") and c.seg == m.seg and c.kind in ("name", "noun")
-                and m.clause >= 0 and c.head in _subtree(parses[m.seg], m.clause)):
+        if (
+            m.role in ("nsubj", "nsubj:pass")
+            and c.seg == m.seg
+            and c.kind in ("name", "noun")
+            and m.clause >= 0
+            and c.head in _subtree(parses[m.seg], m.clause)
+        ):
             continue
         # A speaker outside a quotation is not a person mentioned inside it, and vice versa.
         if c.seg == m.seg and c.sent == m.sent and c.quoted != m.quoted:
@@ -365,9 +396,18 @@ def _pick_antecedent(m, ms, cl, parses, use_gender):
         if use_gender and not m.animate and m.gender not in _genders(cl.members(c.id)):
             continue
         s = _salience(c, m)
-        if m.pron_type == "possessive" and c.seg == m.seg and c.clause == m.clause and c.role in ("nsubj", "nsubj:pass"):
+        if (
+            m.pron_type == "possessive"
+            and c.seg == m.seg
+            and c.clause == m.clause
+            and c.role in ("nsubj", "nsubj:pass")
+        ):
             s += 0.4  # possessives lean to the subject of their own clause
-        if m.pron_type == "possessive" and c.seg == m.seg and c.head == _relative_antecedent(parses[m.seg], m.clause):
+        if (
+            m.pron_type == "possessive"
+            and c.seg == m.seg
+            and c.head == _relative_antecedent(parses[m.seg], m.clause)
+        ):
             s += 0.6  # in a relative clause, the noun it describes is that clause's subject or object
         members = cl.members(c.id)
         # Entities mentioned often stay salient; on the source side a matching known gender is preferred.

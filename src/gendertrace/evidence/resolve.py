@@ -73,14 +73,25 @@ def build_entities(
         if not any(m.animate for m in ch.mentions):
             continue  # only pronouns that may stand for things ("it", "lo"): no person is meant
         # A source mark counts as much as its mention is surely part of the chain.
-        source_marks = [replace(mk, weight=mk.weight * src_res.certainty.get(m.id, 1.0))
-                        for m in ch.mentions for mk in m.marks]
+        source_marks = [
+            replace(mk, weight=mk.weight * src_res.certainty.get(m.id, 1.0))
+            for m in ch.mentions
+            for mk in m.marks
+        ]
         evidence = dedupe(source_marks + [mk for m in targets for mk in m.marks])
         verdict = resolve_gender(evidence)
         n += 1
         eid = f"E{n}"
         entities.append(
-            Entity(eid, ch.mentions, tuple(targets), evidence, verdict.gender, verdict.confidence, _label(ch.mentions))
+            Entity(
+                eid,
+                ch.mentions,
+                tuple(targets),
+                evidence,
+                verdict.gender,
+                verdict.confidence,
+                _label(ch.mentions),
+            )
         )
         for m in targets:
             entity_of_target[m.id] = eid
@@ -91,7 +102,9 @@ def build_entities(
         verdict = resolve_gender(evidence)
         n += 1
         eid = f"E{n}"
-        entities.append(Entity(eid, (), tuple(targets), evidence, verdict.gender, verdict.confidence, _label(targets)))
+        entities.append(
+            Entity(eid, (), tuple(targets), evidence, verdict.gender, verdict.confidence, _label(targets))
+        )
         for m in targets:
             entity_of_target[m.id] = eid
     return entities, entity_of_target

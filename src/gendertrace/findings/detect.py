@@ -8,10 +8,9 @@ assumption: nothing in the source speaks to the person's gender and the target c
 
 from __future__ import annotations
 
+import math
 from collections.abc import Sequence
 from dataclasses import dataclass, replace
-
-import math
 
 from gendertrace.declared.policy import Policy
 from gendertrace.evidence.resolve import STRENGTH_SCALE, resolve_gender
@@ -44,8 +43,18 @@ def target_references(m: Mention, target_text: str) -> list[Reference]:
             start, end = min(mk.start for mk in np_marks), max(mk.end for mk in np_marks)
             if m.kind == "noun":
                 start, end = min(start, m.start), max(end, m.end)  # "la secrétaire": determiner to noun
-            refs.append(Reference(m, m.seg, np_marks[0].seg_id, start, end, target_text[start:end], genders.pop(),
-                                  tuple(np_marks)))
+            refs.append(
+                Reference(
+                    m,
+                    m.seg,
+                    np_marks[0].seg_id,
+                    start,
+                    end,
+                    target_text[start:end],
+                    genders.pop(),
+                    tuple(np_marks),
+                )
+            )
         else:
             for mk in np_marks:
                 refs.append(Reference(m, m.seg, mk.seg_id, mk.start, mk.end, mk.text, mk.gender, (mk,)))
@@ -104,7 +113,8 @@ def detect_findings(
             for m in e.target_mentions:
                 if certainty.get(m.id, 1.0) >= 1.0:
                     chain_refs.setdefault(target_chain_of[m.id], []).extend(
-                        r for r in target_references(m, target_texts[m.seg]) if r.gender in ("fem", "masc"))
+                        r for r in target_references(m, target_texts[m.seg]) if r.gender in ("fem", "masc")
+                    )
     for e in entities:
         refs: dict[tuple[int, int, int], Reference] = {}
         for m in e.target_mentions:
@@ -122,8 +132,9 @@ def detect_findings(
             return link.confidence if link else certainty.get(r.mention.id, 1.0)
 
         if e.declared:
-            n_checked, n_consistent = _judge_declared(e, every, reach, policy, min_confidence, seg_ids,
-                                                      findings)
+            n_checked, n_consistent = _judge_declared(
+                e, every, reach, policy, min_confidence, seg_ids, findings
+            )
             total_refs += len(every)
             checked += n_checked
             consistent += n_consistent
@@ -140,8 +151,17 @@ def detect_findings(
                     if conf >= min_confidence:
                         total_refs += 1
                         checked += 1
-                        findings.append(_finding("contradiction", r, base.gender, e, conf,
-                                                 [x for x in source_ev if x.gender == base.gender], seg_ids))
+                        findings.append(
+                            _finding(
+                                "contradiction",
+                                r,
+                                base.gender,
+                                e,
+                                conf,
+                                [x for x in source_ev if x.gender == base.gender],
+                                seg_ids,
+                            )
+                        )
         total_refs += len(ordered)
         if not ordered:
             continue
@@ -163,15 +183,23 @@ def detect_findings(
                 leaning = source_verdict.gender if source_verdict else None
                 kind = "contradiction" if leaning == verdict.gender else "inconsistency"
                 support = [x for x in source_ev if x.gender == verdict.gender] + [
-                    mk for mk in others if mk.gender == verdict.gender]
+                    mk for mk in others if mk.gender == verdict.gender
+                ]
             conf = verdict.confidence * reach(r)
             # Only for words tied to no source person: a linked word's own entity has spoken (even if silently).
-            if ((conf < min_confidence or verdict.gender not in ("fem", "masc")) and not e.source_mentions
-                    and segment_evidence):
+            if (
+                (conf < min_confidence or verdict.gender not in ("fem", "masc"))
+                and not e.source_mentions
+                and segment_evidence
+            ):
                 seg_ev = segment_evidence[r.seg]
                 seg_verdict = resolve_gender(seg_ev) if seg_ev else None
-                if seg_verdict and seg_verdict.gender in ("fem", "masc") and seg_verdict.confidence >= 0.99 * (
-                        1.0 - math.exp(-sum(e.weight for e in seg_ev) / STRENGTH_SCALE)):
+                if (
+                    seg_verdict
+                    and seg_verdict.gender in ("fem", "masc")
+                    and seg_verdict.confidence
+                    >= 0.99 * (1.0 - math.exp(-sum(e.weight for e in seg_ev) / STRENGTH_SCALE))
+                ):
                     verdict, kind, support = seg_verdict, "contradiction", list(seg_ev)
                     conf = seg_verdict.confidence * SEGMENT_FACTOR
             if verdict.gender not in ("fem", "masc") or conf < min_confidence:
@@ -190,16 +218,29 @@ def detect_findings(
             r = ordered[0]
             findings.append(_finding("assumption", r, None, e, 0.5 * reach(r), (), seg_ids))
     findings.sort(key=lambda f: (f.seg, f.start))
-    counts = {k: sum(1 for f in findings if f.kind == k) for k in ("contradiction", "inconsistency", "assumption")}
+    counts = {
+        k: sum(1 for f in findings if f.kind == k) for k in ("contradiction", "inconsistency", "assumption")
+    }
     stats = DocumentStats(
-        segments=len(target_texts), entities=len(entities), target_references=total_refs, checked=checked,
-        consistent=consistent, findings=counts,
+        segments=len(target_texts),
+        entities=len(entities),
+        target_references=total_refs,
+        checked=checked,
+        consistent=consistent,
+        findings=counts,
     )
     return findings, stats, per_entity
 
 
-def _judge_declared(e: Entity, refs: Sequence[Reference], reach, policy: Policy, min_confidence: float,
-                    seg_ids, findings: list[Finding]) -> tuple[int, int]:
+def _judge_declared(
+    e: Entity,
+    refs: Sequence[Reference],
+    reach,
+    policy: Policy,
+    min_confidence: float,
+    seg_ids,
+    findings: list[Finding],
+) -> tuple[int, int]:
     """Every target form of a declared person against the declaration; returns (checked, consistent)."""
     declared = [x for x in e.evidence if x.kind == "declared"]
     strength = resolve_gender(declared).confidence
@@ -219,8 +260,18 @@ def _judge_declared(e: Entity, refs: Sequence[Reference], reach, policy: Policy,
             continue
         n_checked += 1
         flagged.append(r)
-        findings.append(_finding("contradiction", r, e.declared[0], e, conf, declared, seg_ids,
-                                 basis="the entity sheet declares"))
+        findings.append(
+            _finding(
+                "contradiction",
+                r,
+                e.declared[0],
+                e,
+                conf,
+                declared,
+                seg_ids,
+                basis="the entity sheet declares",
+            )
+        )
     return n_checked, n_consistent
 
 
@@ -250,8 +301,9 @@ def _first_index(refs: Sequence[Reference], gender: str) -> int:
     return next(k for k, r in enumerate(refs) if r.gender == gender)
 
 
-def _finding(kind, r: Reference, expected, e: Entity, conf: float, support, seg_ids,
-             basis: str = "the source says") -> Finding:
+def _finding(
+    kind, r: Reference, expected, e: Entity, conf: float, support, seg_ids, basis: str = "the source says"
+) -> Finding:
     found = r.gender
     if kind == "contradiction":
         msg = f"{r.text!r} makes {e.label or e.id} {found}; {basis} {expected}"
@@ -260,6 +312,16 @@ def _finding(kind, r: Reference, expected, e: Entity, conf: float, support, seg_
     else:
         msg = f"{r.text!r} makes {e.label or e.id} {found}; nothing in the source says so"
     return Finding(
-        kind=kind, seg_id=seg_ids[r.seg], start=r.start, end=r.end, text=r.text, expected=expected, found=found,
-        entity=e.id, confidence=round(conf, 4), evidence=tuple(support), message=msg, seg=r.seg,
+        kind=kind,
+        seg_id=seg_ids[r.seg],
+        start=r.start,
+        end=r.end,
+        text=r.text,
+        expected=expected,
+        found=found,
+        entity=e.id,
+        confidence=round(conf, 4),
+        evidence=tuple(support),
+        message=msg,
+        seg=r.seg,
     )

@@ -66,8 +66,11 @@ def link_mentions(
         if m.kind == "name":
             link = _name_link(m, src_names, chain)
         if link is None and m.kind == "noun":
-            cands = [s for s in src_mentions if s.seg == m.seg and s.kind == "noun"
-                     and m.text.lower() in lexicon.get(s.text.lower(), ())]
+            cands = [
+                s
+                for s in src_mentions
+                if s.seg == m.seg and s.kind == "noun" and m.text.lower() in lexicon.get(s.text.lower(), ())
+            ]
             if len({chain[c.id] for c in cands}) == 1:
                 link = Link(m.id, chain[cands[0].id], "lexicon", CONF_LEXICON, cands[0].id)
         if link is None and m.kind != "zero":
@@ -126,6 +129,6 @@ def _projected(m, tgt_parsed, src_parsed, aligned_sources, subject_of, chain) ->
         if subj is not None:
             subjects[chain[subj.id]] = subj
     if len(subjects) == 1:
-        (cid, subj), = subjects.items()
+        ((cid, subj),) = subjects.items()
         return Link(m.id, cid, "projection", CONF_PROJECTED, subj.id)
     return None

@@ -36,7 +36,14 @@ W_ZERO_MASC_PREDICATE = 0.35
 
 
 def _mark(
-    side: Side, seg: int, seg_id: str, tok: Token | list[Token], gender: str, kind: str, weight: float, rule: str
+    side: Side,
+    seg: int,
+    seg_id: str,
+    tok: Token | list[Token],
+    gender: str,
+    kind: str,
+    weight: float,
+    rule: str,
 ) -> EvidenceItem:
     toks = tok if isinstance(tok, list) else [tok]
     start, end = toks[0].start, toks[-1].end
@@ -124,15 +131,21 @@ def extract_mentions(
     used: set[int] = set()
 
     # Names (not neopronouns the recogniser took for names: "Xe", "Ze").
-    spans = [sp for sp in _name_spans(parsed, known)
-             if not any(f.gender == "neutral" for i in sp for f in rules.pronoun(toks[i].text))]
+    spans = [
+        sp
+        for sp in _name_spans(parsed, known)
+        if not any(f.gender == "neutral" for i in sp for f in rules.pronoun(toks[i].text))
+    ]
     for span in spans:
         words = [toks[i] for i in span]
         # An honorific at the start of a name span is a title, not part of the name.
         title_marks = []
         while words and rules.honorific(words[0].text):
-            title_marks.append(_mark(side, seg, seg_id, words[0], rules.honorific(words[0].text), "title",
-                                     W_TITLE, "honorific"))
+            title_marks.append(
+                _mark(
+                    side, seg, seg_id, words[0], rules.honorific(words[0].text), "title", W_TITLE, "honorific"
+                )
+            )
             words = words[1:]
         if not words:
             continue
@@ -145,18 +158,41 @@ def extract_mentions(
         out.append(
             Mention(
                 id=f"{prefix}{head}",
-                side=side, seg=seg, head=head, tokens=tuple(ids), kind="name",
-                text=parsed.text[words[0].start:words[-1].end], start=words[0].start, end=words[-1].end,
-                number="sing", person="3", role=role, clause=clause, key=name_key(" ".join(w.text for w in words)),
-                marks=tuple(marks), sent=toks[head].sent,
+                side=side,
+                seg=seg,
+                head=head,
+                tokens=tuple(ids),
+                kind="name",
+                text=parsed.text[words[0].start : words[-1].end],
+                start=words[0].start,
+                end=words[-1].end,
+                number="sing",
+                person="3",
+                role=role,
+                clause=clause,
+                key=name_key(" ".join(w.text for w in words)),
+                marks=tuple(marks),
+                sent=toks[head].sent,
             )
         )
         used.update(ids)
 
     # Person nouns the tagger took for something else ("la ingeniera" as a verb) still count after an article.
-    noun_like = {t.i for t in toks if rules.is_person_noun(t.text) and not _is_plural(t) and (
-        t.upos in ("NOUN", "PROPN") or (t.i > 0 and rules.article_gender(toks[t.i - 1].text) is not None)
-        or (t.i > 1 and toks[t.i - 1].upos == "ADJ" and rules.article_gender(toks[t.i - 2].text) is not None))}
+    noun_like = {
+        t.i
+        for t in toks
+        if rules.is_person_noun(t.text)
+        and not _is_plural(t)
+        and (
+            t.upos in ("NOUN", "PROPN")
+            or (t.i > 0 and rules.article_gender(toks[t.i - 1].text) is not None)
+            or (
+                t.i > 1
+                and toks[t.i - 1].upos == "ADJ"
+                and rules.article_gender(toks[t.i - 2].text) is not None
+            )
+        )
+    }
     for t in toks:
         if t.i in used:
             continue
@@ -168,7 +204,11 @@ def extract_mentions(
                 # Languages without gendered articles (English) have only inherently gendered nouns here.
                 marks.append(_mark(side, seg, seg_id, t, gender, "lexical", W_LEXICAL, "gendered noun"))
             elif gender == "masc":
-                rule = "generic masculine noun" if t.text.lower() in rules.generic_masculine else "masculine noun form"
+                rule = (
+                    "generic masculine noun"
+                    if t.text.lower() in rules.generic_masculine
+                    else "masculine noun form"
+                )
                 marks.append(_mark(side, seg, seg_id, t, gender, "lexical", W_UNMARKED_NOUN, rule))
             marks += _honorifics_before(parsed, t.i, [t.i], rules, side, seg, seg_id)
             marks += _np_marks(parsed, t.i, rules, side, seg, seg_id, noun_form=True)
@@ -176,8 +216,11 @@ def extract_mentions(
                 before = toks[t.i - 1]
                 g = rules.article_gender(before.text)
                 if g in ("fem", "masc"):
-                    marks.append(_mark(side, seg, seg_id, before, g, "morphology", W_DETERMINER,
-                                       "determiner agreement"))
+                    marks.append(
+                        _mark(
+                            side, seg, seg_id, before, g, "morphology", W_DETERMINER, "determiner agreement"
+                        )
+                    )
             role, clause = _role_and_clause(parsed, t.i)
             marks += _predicate_marks(parsed, t.i, role, clause, rules, side, seg, seg_id, zero=False)
             if gender == "epicene":
@@ -185,9 +228,22 @@ def extract_mentions(
             masc_key = counterpart if gender == "fem" else t.text.lower()
             out.append(
                 Mention(
-                    id=f"{prefix}{t.i}", side=side, seg=seg, head=t.i, tokens=(t.i,), kind="noun", text=t.text,
-                    start=t.start, end=t.end, number="sing", person="3", role=role, clause=clause,
-                    key=masc_key, marks=tuple(marks), sent=t.sent,
+                    id=f"{prefix}{t.i}",
+                    side=side,
+                    seg=seg,
+                    head=t.i,
+                    tokens=(t.i,),
+                    kind="noun",
+                    text=t.text,
+                    start=t.start,
+                    end=t.end,
+                    number="sing",
+                    person="3",
+                    role=role,
+                    clause=clause,
+                    key=masc_key,
+                    marks=tuple(marks),
+                    sent=t.sent,
                 )
             )
             continue
@@ -197,17 +253,31 @@ def extract_mentions(
             mark = _mark(side, seg, seg_id, t, "neutral", "morphology", W_LEXICAL, NEUTRAL_FORM_RULE)
             out.append(
                 Mention(
-                    id=f"{prefix}{t.i}", side=side, seg=seg, head=t.i, tokens=(t.i,), kind="noun",
-                    text=t.text, start=t.start, end=t.end, number="sing", person="3", role=role,
-                    clause=clause, key=t.text.lower(), marks=(mark,), sent=t.sent,
+                    id=f"{prefix}{t.i}",
+                    side=side,
+                    seg=seg,
+                    head=t.i,
+                    tokens=(t.i,),
+                    kind="noun",
+                    text=t.text,
+                    start=t.start,
+                    end=t.end,
+                    number="sing",
+                    person="3",
+                    role=role,
+                    clause=clause,
+                    key=t.text.lower(),
+                    marks=(mark,),
+                    sent=t.sent,
                 )
             )
             continue
         # Pronouns (not an article the tagger misread before a person noun).
         if t.i + 1 in noun_like and rules.article_gender(t.text) is not None:
             continue
-        neutral_form = (any(f.gender == "neutral" for f in rules.pronoun(t.text))
-                        and t.deprel in NEUTRAL_PRONOUN_RELS)
+        neutral_form = (
+            any(f.gender == "neutral" for f in rules.pronoun(t.text)) and t.deprel in NEUTRAL_PRONOUN_RELS
+        )
         if (t.upos in ("PRON", "DET") or neutral_form) and rules.pronoun(t.text):
             # Taggers often miss neopronouns and "elle" as pronouns: their relation in the clause decides.
             form = _pick_pronoun_form(t, rules) if t.upos in ("PRON", "DET") else _neutral_form(t, rules)
@@ -228,7 +298,9 @@ def extract_mentions(
                 marks.append(_mark(side, seg, seg_id, t, "neutral", "pronoun", W_PRONOUN, SINGULAR_THEY_RULE))
             elif form.gender and not _gender_doublet(parsed, t, rules):
                 weight = W_PRONOUN if form.animate else W_CLITIC
-                marks.append(_mark(side, seg, seg_id, t, form.gender, "pronoun", weight, f"{form.type} pronoun"))
+                marks.append(
+                    _mark(side, seg, seg_id, t, form.gender, "pronoun", weight, f"{form.type} pronoun")
+                )
             role, clause = _role_and_clause(parsed, t.i)
             if form.type == "possessive":
                 clause = _governing_clause(parsed, t.i)
@@ -236,11 +308,24 @@ def extract_mentions(
                 marks += _predicate_marks(parsed, t.i, role, clause, rules, side, seg, seg_id, zero=False)
             out.append(
                 Mention(
-                    id=f"{prefix}{t.i}", side=side, seg=seg, head=t.i, tokens=(t.i,), kind="pronoun", text=t.text,
-                    start=t.start, end=t.end, number=None if singular_they else form.number,
+                    id=f"{prefix}{t.i}",
+                    side=side,
+                    seg=seg,
+                    head=t.i,
+                    tokens=(t.i,),
+                    kind="pronoun",
+                    text=t.text,
+                    start=t.start,
+                    end=t.end,
+                    number=None if singular_they else form.number,
                     person=form.person,
-                    pron_type=form.type, role=role,
-                    clause=clause, key=pronoun_key(t.text), marks=tuple(marks), sent=t.sent, animate=form.animate,
+                    pron_type=form.type,
+                    role=role,
+                    clause=clause,
+                    key=pronoun_key(t.text),
+                    marks=tuple(marks),
+                    sent=t.sent,
+                    animate=form.animate,
                     case=form.case,
                 )
             )
@@ -255,8 +340,26 @@ def extract_mentions(
 SINGULAR_THEY_RULE = "singular they"
 NEUTRAL_FORM_RULE = "neutral form"
 # Relations in which a word the tagger did not call a pronoun still stands as one (UD and ClearNLP labels).
-NEUTRAL_PRONOUN_RELS = {"nsubj", "nsubj:pass", "nsubjpass", "obj", "dobj", "iobj", "obl", "pobj", "nmod:poss",
-                        "poss", "dative", "root", "conj", "appos", "expl", "dep", "npadvmod", "compound"}
+NEUTRAL_PRONOUN_RELS = {
+    "nsubj",
+    "nsubj:pass",
+    "nsubjpass",
+    "obj",
+    "dobj",
+    "iobj",
+    "obl",
+    "pobj",
+    "nmod:poss",
+    "poss",
+    "dative",
+    "root",
+    "conj",
+    "appos",
+    "expl",
+    "dep",
+    "npadvmod",
+    "compound",
+}
 
 
 def _neutral_form(t: Token, rules: LanguageRules):
@@ -305,7 +408,7 @@ def neutral_forms(parsed: ParsedText, rules: LanguageRules) -> list[tuple[int, i
             continue
         a, b = toks[t.i - 1], toks[t.i + 1]
         if _counterparts(a.text.lower(), b.text.lower(), rules):
-            out.append((a.start, b.end, parsed.text[a.start:b.end], "doubled form"))
+            out.append((a.start, b.end, parsed.text[a.start : b.end], "doubled form"))
     return sorted(out)
 
 
@@ -324,7 +427,7 @@ def _counterparts(a: str, b: str, rules: LanguageRules) -> bool:
         if entry and entry[0] == "masc" and entry[1] == y:
             return True
         for m_end, f_end in (("os", "as"), ("o", "a"), ("s", "es"), ("", "e")):
-            if len(x) > 3 and x.endswith(m_end) and y == x[:len(x) - len(m_end)] + f_end:
+            if len(x) > 3 and x.endswith(m_end) and y == x[: len(x) - len(m_end)] + f_end:
                 return True
     return False
 
@@ -353,8 +456,9 @@ def singular_they_ok(m: Mention, chain: list[Mention], parses: list[ParsedText])
                 return False  # "the engineers arrived": plural they is as likely
             if t.deprel == "conj" and t.upos in ("NOUN", "PROPN") and t.head == a.head and k == a.seg:
                 return False  # "Ana and Luis ... they"
-    if m.side == "source" and any(mk.kind == "pronoun" and mk.gender in ("fem", "masc")
-                                  for c in chain for mk in c.marks):
+    if m.side == "source" and any(
+        mk.kind == "pronoun" and mk.gender in ("fem", "masc") for c in chain for mk in c.marks
+    ):
         return False
     return True
 
@@ -388,8 +492,9 @@ def _is_expletive(parsed: ParsedText, t: Token, rules: LanguageRules) -> bool:
     head = parsed.tokens[t.head]
     kids = parsed.children(head.i)
     # A clausal complement proper: "il semble que...", "il reste à faire" (not an adverbial clause or participle).
-    clausal = any(k.deprel in ("ccomp", "csubj") or (k.deprel == "xcomp" and k.feat("VerbForm") == "Inf")
-                  for k in kids)
+    clausal = any(
+        k.deprel in ("ccomp", "csubj") or (k.deprel == "xcomp" and k.feat("VerbForm") == "Inf") for k in kids
+    )
     lemma = head.lemma.lower()
     if lemma in rules.expletive_verbs or (lemma in rules.expletive_clausal_verbs and clausal):
         return True
@@ -466,7 +571,9 @@ def _role_and_clause(parsed: ParsedText, i: int) -> tuple[str, int]:
 def _verb_clitic(parsed: ParsedText, t: Token) -> bool:
     """An object clitic depends on a verb as its object."""
     head = parsed.head_of(t.i)
-    return head is not None and head.upos in ("VERB", "AUX") and t.deprel in ("obj", "iobj", "expl", "expl:pv")
+    return (
+        head is not None and head.upos in ("VERB", "AUX") and t.deprel in ("obj", "iobj", "expl", "expl:pv")
+    )
 
 
 def _governing_clause(parsed: ParsedText, i: int) -> int:
@@ -512,14 +619,18 @@ def _np_marks(parsed, head, rules, side, seg, seg_id, noun_form: bool) -> list[E
             if g is None and c.feat("PronType") in ("Art", "Dem"):
                 g = c.gender
             if g in ("fem", "masc") and c.i < head:
-                marks.append(_mark(side, seg, seg_id, c, g, "morphology", W_DETERMINER, "determiner agreement"))
+                marks.append(
+                    _mark(side, seg, seg_id, c, g, "morphology", W_DETERMINER, "determiner agreement")
+                )
         elif c.upos in ("ADJ", "VERB") and c.gender in ("fem", "masc"):
             lo, hi = sorted((c.i, head))
             if any(parsed.tokens[j].upos in ("NOUN", "PROPN") for j in range(lo + 1, hi)):
                 continue  # a noun in between: the adjective more likely goes with that noun
             if c.gender == "masc" and not noun_form:
                 continue  # an adjective on a bare name: too often an unrelated modifier
-            marks.append(_mark(side, seg, seg_id, c, c.gender, "agreement", W_ADJECTIVE, "adjective agreement"))
+            marks.append(
+                _mark(side, seg, seg_id, c, c.gender, "agreement", W_ADJECTIVE, "adjective agreement")
+            )
     return marks
 
 
@@ -556,14 +667,18 @@ def _predicate_marks(parsed, i, role, clause, rules, side, seg, seg_id, zero: bo
                 return
             g = ng
             if g == "masc" and tok.text.lower() in rules.generic_masculine:
-                marks.append(_mark(side, seg, seg_id, tok, g, "lexical", W_UNMARKED_NOUN, "generic masculine noun"))
+                marks.append(
+                    _mark(side, seg, seg_id, tok, g, "lexical", W_UNMARKED_NOUN, "generic masculine noun")
+                )
                 return
         weight = W_ZERO_MASC_PREDICATE if zero and g == "masc" else W_PREDICATE
         marks.append(_mark(side, seg, seg_id, tok, g, "agreement", weight, rule))
 
     if has_cop and pred.upos in ("ADJ", "NOUN", "VERB"):
         add(pred, "predicative with copula")
-    elif has_cop and pred.upos in ("PRON", "NUM", "DET") and rules.article_gender(pred.text) in ("fem", "masc"):
+    elif (
+        has_cop and pred.upos in ("PRON", "NUM", "DET") and rules.article_gender(pred.text) in ("fem", "masc")
+    ):
         # Partitive predicates agree with the subject: "es una de las pocas pilotos", "l'une des rares".
         g = rules.article_gender(pred.text)
         marks.append(_mark(side, seg, seg_id, pred, g, "agreement", W_PREDICATE, "predicative with copula"))
@@ -575,20 +690,32 @@ def _predicate_marks(parsed, i, role, clause, rules, side, seg, seg_id, zero: bo
     # Coordinated predicates agree with the same subject ("cansada pero muy satisfecha").
     if marks and pred.upos in ("ADJ", "VERB"):
         for k in kids:
-            if k.deprel == "conj" and k.upos in ("ADJ", "VERB") and (k.upos == "ADJ" or k.feat("VerbForm") == "Part"):
+            if (
+                k.deprel == "conj"
+                and k.upos in ("ADJ", "VERB")
+                and (k.upos == "ADJ" or k.feat("VerbForm") == "Part")
+            ):
                 add(k, "predicative with copula")
     # Secondary predicates ("quedó sorprendida", "se mostró convencida", "declaró emocionada"): an adjective
     # hanging on the verb itself describes the subject, unless the verb has a nominal object it could describe.
     if pred.lemma.lower() in rules.copulas:
         for k in kids:
-            if k.deprel == "xcomp" and k.upos in ("ADJ", "VERB") and (k.upos == "ADJ" or k.feat("VerbForm") == "Part"):
+            if (
+                k.deprel == "xcomp"
+                and k.upos in ("ADJ", "VERB")
+                and (k.upos == "ADJ" or k.feat("VerbForm") == "Part")
+            ):
                 add(k, "secondary predicate")
-    elif pred.upos == "VERB" and not any(k.deprel in ("obj", "iobj") and k.upos in ("NOUN", "PROPN", "PRON")
-                                         for k in kids):
+    elif pred.upos == "VERB" and not any(
+        k.deprel in ("obj", "iobj") and k.upos in ("NOUN", "PROPN", "PRON") for k in kids
+    ):
         for k in kids:
-            if (k.upos == "ADJ" and k.deprel in ("xcomp", "advcl", "obj", "conj", "dep", "obl")
-                    and not rules.is_person_noun(k.text)
-                    and not any(d.deprel == "det" for d in parsed.children(k.i))):
+            if (
+                k.upos == "ADJ"
+                and k.deprel in ("xcomp", "advcl", "obj", "conj", "dep", "obl")
+                and not rules.is_person_noun(k.text)
+                and not any(d.deprel == "det" for d in parsed.children(k.i))
+            ):
                 add(k, "secondary predicate")
     return marks
 
@@ -626,9 +753,22 @@ def _zero_subjects(parsed, seg, seg_id, side, rules, prefix, quoted=frozenset())
         marks = _predicate_marks(parsed, -1, "nsubj", t.i, rules, side, seg, seg_id, zero=True)
         out.append(
             Mention(
-                id=f"{prefix}z{t.i}", side=side, seg=seg, head=t.i, tokens=(finite.i,), kind="zero",
-                text=finite.text, start=finite.start, end=finite.end, number="sing", person=person,
-                role="nsubj", clause=t.i, key="", marks=tuple(marks), sent=finite.sent,
+                id=f"{prefix}z{t.i}",
+                side=side,
+                seg=seg,
+                head=t.i,
+                tokens=(finite.i,),
+                kind="zero",
+                text=finite.text,
+                start=finite.start,
+                end=finite.end,
+                number="sing",
+                person=person,
+                role="nsubj",
+                clause=t.i,
+                key="",
+                marks=tuple(marks),
+                sent=finite.sent,
             )
         )
     return out

@@ -30,7 +30,9 @@ def _feats(value: str, path: str, line: int) -> dict[str, str]:
     out = {}
     for pair in value.split("|"):
         if "=" not in pair:
-            raise InputError(path, line, f"FEATS item {pair!r} is not Name=Value (UD guidelines, CoNLL-U format)")
+            raise InputError(
+                path, line, f"FEATS item {pair!r} is not Name=Value (UD guidelines, CoNLL-U format)"
+            )
         k, v = pair.split("=", 1)
         out[k] = v
     return out
@@ -76,7 +78,7 @@ def sentence_from_rows(
     text = meta.get("text") or " ".join(form for form, _ in surface)
     spans = _offsets(text, [form for form, _ in surface])
     word_span: dict[int, tuple[int, int]] = {}
-    for (_, idxs), span in zip(surface, spans):
+    for (_, idxs), span in zip(surface, spans, strict=True):
         for w in idxs:
             word_span[w] = span
     id_to_index = {cols[0]: k for k, (_, cols) in enumerate(words)}
@@ -196,7 +198,9 @@ class ConlluParser:
             parsed = self.by_text.get(_norm(text))
             if parsed is None:
                 raise InputError(
-                    self.paths[0], None, f"no sentence with text {text[:60]!r} in the pre-parsed CoNLL-U input"
+                    self.paths[0],
+                    None,
+                    f"no sentence with text {text[:60]!r} in the pre-parsed CoNLL-U input",
                 )
             out.append(parsed)
         return out

@@ -44,7 +44,9 @@ def load_pipeline(name: str):
         try:
             return spacy.load(name)
         except OSError as exc:
-            raise ModelError(f"cannot load spaCy pipeline {name!r}: is the package installed? ({exc})") from exc
+            raise ModelError(
+                f"cannot load spaCy pipeline {name!r}: is the package installed? ({exc})"
+            ) from exc
 
 
 class SpacyParser:

@@ -103,7 +103,11 @@ class LanguageRules:
         low = form.lower()
         best = None
         for ending, gender in self.endings:
-            if low.endswith(ending) and len(low) > len(ending) and (best is None or len(ending) > len(best[0])):
+            if (
+                low.endswith(ending)
+                and len(low) > len(ending)
+                and (best is None or len(ending) > len(best[0]))
+            ):
                 best = (ending, gender)
         return (True, best[1]) if best else (False, None)
 
@@ -135,8 +139,18 @@ def _str_list(data: dict, key: str, path: Path, where: str) -> list[str]:
 
 
 TOP_KEYS = {
-    "language", "name", "pro_drop", "possessive_agrees_with", "pronouns", "honorifics", "articles",
-    "agreement", "person_nouns", "expletives", "role_markers", "neutral_language",
+    "language",
+    "name",
+    "pro_drop",
+    "possessive_agrees_with",
+    "pronouns",
+    "honorifics",
+    "articles",
+    "agreement",
+    "person_nouns",
+    "expletives",
+    "role_markers",
+    "neutral_language",
 }
 
 
@@ -159,8 +173,16 @@ def parse_rules(data: Any, path: Path) -> LanguageRules:
         where = f"pronouns[{k}]"
         if not isinstance(item, dict):
             raise _fail(path, where, f"expected a mapping, found {item!r}")
-        extra = set(item) - {"form", "gender", "number", "type", "case", "animate", "person",
-                              "singular_neutral"}
+        extra = set(item) - {
+            "form",
+            "gender",
+            "number",
+            "type",
+            "case",
+            "animate",
+            "person",
+            "singular_neutral",
+        }
         if extra:
             raise _fail(path, f"{where}.{sorted(extra)[0]}", "unknown key")
         form = _require(item, "form", str, path, where + ".")
@@ -174,7 +196,11 @@ def parse_rules(data: Any, path: Path) -> LanguageRules:
         if ptype not in PRONOUN_TYPES:
             raise _fail(path, f"{where}.type", f"expected one of {sorted(PRONOUN_TYPES)}, found {ptype!r}")
         if item.get("case") not in CASE_VALUES:
-            raise _fail(path, f"{where}.case", f"expected one of nom, acc, dat, gen or null, found {item.get('case')!r}")
+            raise _fail(
+                path,
+                f"{where}.case",
+                f"expected one of nom, acc, dat, gen or null, found {item.get('case')!r}",
+            )
         animate = item.get("animate", True)
         if not isinstance(animate, bool):
             raise _fail(path, f"{where}.animate", f"expected true or false, found {animate!r}")
@@ -183,16 +209,20 @@ def parse_rules(data: Any, path: Path) -> LanguageRules:
             raise _fail(path, f"{where}.person", f"expected 1 or 3, found {item.get('person')!r}")
         singular_neutral = item.get("singular_neutral", False)
         if not isinstance(singular_neutral, bool) or (singular_neutral and number != "plur"):
-            raise _fail(path, f"{where}.singular_neutral", f"expected true or false on a plural form, found "
-                                                           f"{singular_neutral!r}")
+            raise _fail(
+                path,
+                f"{where}.singular_neutral",
+                f"expected true or false on a plural form, found {singular_neutral!r}",
+            )
         pronouns.setdefault(form.lower(), []).append(
-            PronounForm(form.lower(), gender, number, ptype, item.get("case"), animate, person,
-                        singular_neutral)
+            PronounForm(
+                form.lower(), gender, number, ptype, item.get("case"), animate, person, singular_neutral
+            )
         )
 
     honorifics: dict[str, str] = {}
     hon = _require(data, "honorifics", dict, path)
-    for gender, forms in hon.items():
+    for gender in hon:
         if gender not in ("fem", "masc", "neutral"):
             raise _fail(path, f"honorifics.{gender}", "expected fem, masc or neutral")
         for form in _str_list(hon, gender, path, "honorifics."):
@@ -208,15 +238,28 @@ def parse_rules(data: Any, path: Path) -> LanguageRules:
     agreement = _require(data, "agreement", dict, path)
     endings = []
     for k, item in enumerate(agreement.get("endings", [])):
-        if not (isinstance(item, list) and len(item) == 2 and isinstance(item[0], str)
-                and item[1] in ("fem", "masc", None)):
+        if not (
+            isinstance(item, list)
+            and len(item) == 2
+            and isinstance(item[0], str)
+            and item[1] in ("fem", "masc", None)
+        ):
             raise _fail(path, f"agreement.endings[{k}]", f"expected [ending, fem|masc|null], found {item!r}")
         endings.append((item[0].lower(), item[1]))
-    unknown_agr = set(agreement) - {"dependents", "copulas", "agreeing_aux", "passive_aux", "invariable_aux", "endings"}
+    unknown_agr = set(agreement) - {
+        "dependents",
+        "copulas",
+        "agreeing_aux",
+        "passive_aux",
+        "invariable_aux",
+        "endings",
+    }
     if unknown_agr:
         raise _fail(path, f"agreement.{sorted(unknown_agr)[0]}", "unknown key")
-    lists = {k: frozenset(_str_list(agreement, k, path, "agreement.")) for k in (
-        "dependents", "copulas", "agreeing_aux", "passive_aux", "invariable_aux")}
+    lists = {
+        k: frozenset(_str_list(agreement, k, path, "agreement."))
+        for k in ("dependents", "copulas", "agreeing_aux", "passive_aux", "invariable_aux")
+    }
 
     nouns = _require(data, "person_nouns", dict, path)
     noun_genders: dict[str, tuple[str, str]] = {}
@@ -228,18 +271,24 @@ def parse_rules(data: Any, path: Path) -> LanguageRules:
         noun_genders.setdefault(fem, ("fem", masc))
     for form in _str_list(nouns, "common", path, "person_nouns."):
         noun_genders.setdefault(form.lower(), ("common", form.lower()))
-    generic = frozenset(f.lower() for f in _str_list({"generic_masculine": [], **nouns}, "generic_masculine", path,
-                                                        "person_nouns."))
+    generic = frozenset(
+        f.lower()
+        for f in _str_list({"generic_masculine": [], **nouns}, "generic_masculine", path, "person_nouns.")
+    )
     for form in _str_list({"epicene": [], **nouns}, "epicene", path, "person_nouns."):
         noun_genders[form.lower()] = ("epicene", form.lower())
 
-    expl = data.get("expletives", {"pronouns": [], "verbs": [], "clausal_verbs": [], "clitics": [],
-                                   "copular_clause": False})
+    expl = data.get(
+        "expletives",
+        {"pronouns": [], "verbs": [], "clausal_verbs": [], "clitics": [], "copular_clause": False},
+    )
     if not isinstance(expl, dict):
         raise _fail(path, "expletives", f"expected a mapping, found {expl!r}")
     expl = {"clausal_verbs": [], **expl}  # optional: verbs impersonal only with a clausal complement
-    expl_lists = {k: frozenset(w.lower() for w in _str_list(expl, k, path, "expletives."))
-                  for k in ("pronouns", "verbs", "clausal_verbs", "clitics")}
+    expl_lists = {
+        k: frozenset(w.lower() for w in _str_list(expl, k, path, "expletives."))
+        for k in ("pronouns", "verbs", "clausal_verbs", "clitics")
+    }
     copular_clause = _require(expl, "copular_clause", bool, path, "expletives.")
 
     neutral_words, conjunctions, midpoints = _neutral_language(data.get("neutral_language", {}), path)
@@ -257,7 +306,9 @@ def parse_rules(data: Any, path: Path) -> LanguageRules:
         **lists,
         endings=tuple(endings),
         generic_masculine=generic,
-        role_markers=frozenset(w.lower() for w in _str_list({"role_markers": [], **data}, "role_markers", path, "")),
+        role_markers=frozenset(
+            w.lower() for w in _str_list({"role_markers": [], **data}, "role_markers", path, "")
+        ),
         expletive_pronouns=expl_lists["pronouns"],
         expletive_verbs=expl_lists["verbs"],
         expletive_clausal_verbs=expl_lists["clausal_verbs"],
@@ -281,17 +332,26 @@ def _neutral_language(spec: Any, path: Path) -> tuple[dict[str, str], frozenset[
     words: dict[str, str] = {}
     for k, item in enumerate(spec.get("words", [])):
         where = f"neutral_language.words[{k}]"
-        if not (isinstance(item, dict) and isinstance(item.get("form"), str)
-                and item.get("number") in ("sing", "plur") and set(item) <= {"form", "number"}):
+        if not (
+            isinstance(item, dict)
+            and isinstance(item.get("form"), str)
+            and item.get("number") in ("sing", "plur")
+            and set(item) <= {"form", "number"}
+        ):
             raise _fail(path, where, f"expected {{form: word, number: sing|plur}}, found {item!r}")
         words[item["form"].lower()] = item["number"]
-    conj = frozenset(w.lower() for w in _str_list({"doublet_conjunctions": [], **spec},
-                                                   "doublet_conjunctions", path, "neutral_language."))
+    conj = frozenset(
+        w.lower()
+        for w in _str_list(
+            {"doublet_conjunctions": [], **spec}, "doublet_conjunctions", path, "neutral_language."
+        )
+    )
     mids = _str_list({"midpoints": [], **spec}, "midpoints", path, "neutral_language.")
     for k, ch in enumerate(mids):
         if len(ch) != 1 or ch.isalnum():
-            raise _fail(path, f"neutral_language.midpoints[{k}]",
-                        f"expected one non-letter character, found {ch!r}")
+            raise _fail(
+                path, f"neutral_language.midpoints[{k}]", f"expected one non-letter character, found {ch!r}"
+            )
     return words, conj, frozenset(mids)
 
 
@@ -315,7 +375,9 @@ def load_rules(lang: str, folder: str | None = None) -> LanguageRules:
     path = base / f"{lang}.yaml"
     if not path.is_file():
         have = sorted(p.stem for p in base.glob("*.yaml"))
-        raise RulesError(str(path), "(file)", f"no rules for language {lang!r} (rules exist for: {', '.join(have)})")
+        raise RulesError(
+            str(path), "(file)", f"no rules for language {lang!r} (rules exist for: {', '.join(have)})"
+        )
     rules = parse_rules(_read_yaml(path), path)
     if rules.lang != lang:
         raise _fail(path, "language", f"expected {lang!r} (the file name), found {rules.lang!r}")
