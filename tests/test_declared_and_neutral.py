@@ -545,6 +545,30 @@ def test_first_names_are_off_by_default_and_weak_when_on(tmp_path):
     assert _found(on) == _found(off)
 
 
+def test_package_first_name_list_reads_the_package_data():
+    # gender-guesser ships its name dictionary inside the package: "Maria" is listed female and "John" male
+    # (from memory); an unlisted string gives nothing.
+    pytest.importorskip("gender_guesser")
+    from gendertrace.declared.policy import load_first_names
+
+    names = load_first_names("package")
+    assert names["maria"] == "fem" and names["john"] == "masc"
+    assert "qzxw" not in names
+
+
+@pytest.mark.slow
+def test_package_first_names_are_weak_evidence_that_text_outranks():
+    pytest.importorskip("gender_guesser")
+    pairs = [
+        ("El director Maria Varga llegó ayer a Ostrel.", "Director Maria Varga arrived in Ostrel yesterday."),
+        ("Después visitó el puerto.", "Then he visited the port."),
+    ]
+    on = _score("es", "en", pairs, policy=Policy(first_names="package"))
+    ent = next(e for e in on.entities if "Varga" in e.label)
+    assert [(x.kind, x.gender) for x in ent.evidence if x.kind == "first-name"] == [("first-name", "fem")]
+    assert ent.gender == "masc"  # the determiner and noun of "El director" outrank the name
+
+
 # --------------------------------------------------------------------------------------------------
 # Signature and explanation
 

@@ -24,7 +24,8 @@ class Policy:
     """neutral_for_binary: a neutral target form for an entity with binary evidence is accepted or flagged.
     gendered_for_nonbinary: gendered target forms for a person declared neutral (non-binary) are findings.
     assumptions: the entity kinds whose assumption findings are shown.
-    first_names: a name list (TSV: name, fem|masc) used as weak evidence; None (the default): no first names.
+    first_names: a name list (TSV: name, fem|masc) used as weak evidence, or "package" for the list of the
+        gender-guesser package from the package index; None (the default): no first names.
     """
 
     neutral_for_binary: str = "accept"
@@ -84,7 +85,7 @@ def load_policy(path: str | Path, base: Policy | None = None) -> Policy:
             if not isinstance(value, list):
                 raise InputError(str(p), None, f"{key}: expected a list of {', '.join(ASSUMPTION_KINDS)}")
             value = tuple(value)
-        if key == "first_names" and value is not None:
+        if key == "first_names" and value is not None and value != PACKAGE_NAME_LIST:
             value = (
                 str((p.parent / str(value)).resolve()) if not Path(str(value)).is_absolute() else str(value)
             )
@@ -95,8 +96,47 @@ def load_policy(path: str | Path, base: Policy | None = None) -> Policy:
         raise InputError(str(p), None, str(exc)) from exc
 
 
-def load_first_names(path: str) -> dict[str, str]:
-    """A first-name list: one 'name<TAB>fem|masc' per line ('#' comments); InputError names the line."""
+# `first_names: package` takes the list from the gender-guesser package (its name dictionary ships inside the
+# package, offline): an optional extra, `pip install 'gendertrace[names]'`.
+PACKAGE_NAME_LIST = "package"
+_GUESSER_GENDERS = {"female": "fem", "mostly_female": "fem", "male": "masc", "mostly_male": "masc"}
+
+
+class _PackageNames:
+    """Mapping-like lookup of first names in the gender-guesser package; 'andy' and unknown names give nothing."""
+
+    def __init__(self) -> None:
+        try:
+            from gender_guesser.detector import Detector
+        except ImportError as exc:
+            raise InputError(PACKAGE_NAME_LIST, None, "first_names: package needs the gender-guesser package "
+                             "(pip install 'gendertrace[names]')") from exc
+        self._detector = Detector(case_sensitive=False)
+        self._cache: dict[str, str | None] = {}
+
+    def _gender(self, name: str) -> str | None:
+        if name not in self._cache:
+            self._cache[name] = _GUESSER_GENDERS.get(self._detector.get_gender(name))
+        return self._cache[name]
+
+    def __contains__(self, name: object) -> bool:
+        return isinstance(name, str) and self._gender(name) is not None
+
+    def __getitem__(self, name: str) -> str:
+        gender = self._gender(name)
+        if gender is None:
+            raise KeyError(name)
+        return gender
+
+    def __bool__(self) -> bool:
+        return True
+
+
+def load_first_names(path: str):
+    """A first-name lookup: `package` (the gender-guesser package's list), or a file with one
+    'name<TAB>fem|masc' per line ('#' comments); InputError names the line."""
+    if path == PACKAGE_NAME_LIST:
+        return _PackageNames()
     out: dict[str, str] = {}
     try:
         lines = Path(path).read_text(encoding="utf-8").splitlines()
