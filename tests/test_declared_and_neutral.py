@@ -655,3 +655,25 @@ def test_gendered_target_for_a_source_singular_they_is_an_assumption():
     robin = next(e for e in r.entities if e.label == "Robin Okafor")
     assert [x.rule for x in robin.evidence if x.side == "source"] == ["singular they"]
     assert _found(r) == [("assumption", "Ella", None, "fem")]
+
+
+@pytest.mark.parametrize("word", ["Lehrer*innen", "Lehrer:innen", "Lehrer_innen"])
+def test_german_gender_star_colon_and_gap_forms_are_neutral_plurals(tmp_path, word):
+    # German inclusive spellings (gender star, colon, gender gap) with the plural suffix -innen; common usage,
+    # not official orthography (from memory). German comes in through CoNLL-U.
+    from gendertrace.mentions.extract import neutral_forms
+    from gendertrace.parse.conllu_backend import read_conllu
+    from gendertrace.rules import load_rules
+
+    path = tmp_path / "de.conllu"
+    path.write_text(
+        f"# text = Die {word} kommen.\n"
+        "1\tDie\tder\tDET\t_\tNumber=Plur\t2\tdet\t_\t_\n"
+        f"2\t{word}\tLehrer\tNOUN\t_\tNumber=Plur\t3\tnsubj\t_\t_\n"
+        "3\tkommen\tkommen\tVERB\t_\tNumber=Plur|Person=3\t0\troot\t_\tSpaceAfter=No\n"
+        "4\t.\t.\tPUNCT\t_\t_\t3\tpunct\t_\t_\n\n",
+        encoding="utf-8",
+    )
+    parsed = read_conllu(path, "de")[0].parsed
+    forms = neutral_forms(parsed, load_rules("de"))
+    assert [f[2] for f in forms] == [word]

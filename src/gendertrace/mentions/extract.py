@@ -383,7 +383,7 @@ def _neutral_word(parsed: ParsedText, t: Token, rules: LanguageRules) -> str | N
         word = text[a:b]
         parts = [p for p in "".join("|" if c in rules.neutral_midpoints else c for c in word).split("|")]
         if len(parts) >= 2 and all(parts) and a == t.start:
-            return "plur" if parts[-1].lower() in ("s", "es", "x") or len(parts) > 2 else "sing"
+            return "plur" if parts[-1].lower() in rules.neutral_plural_endings or len(parts) > 2 else "sing"
     return None
 
 

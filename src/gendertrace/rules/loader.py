@@ -77,6 +77,7 @@ class LanguageRules:
     neutral_words: dict[str, str] = field(default_factory=dict)  # form -> number (sing/plur) of neutral forms
     neutral_doublet_conjunctions: frozenset[str] = frozenset()
     neutral_midpoints: frozenset[str] = frozenset()
+    neutral_plural_endings: tuple[str, ...] = ("s", "es", "x")  # last part of a split form that makes it plural
 
     def pronoun(self, form: str) -> tuple[PronounForm, ...]:
         return self.pronouns.get(pronoun_key(form), ())
@@ -292,6 +293,11 @@ def parse_rules(data: Any, path: Path) -> LanguageRules:
     copular_clause = _require(expl, "copular_clause", bool, path, "expletives.")
 
     neutral_words, conjunctions, midpoints = _neutral_language(data.get("neutral_language", {}), path)
+    plural_endings = tuple(
+        w.lower()
+        for w in _str_list({"plural_endings": ["s", "es", "x"], **data.get("neutral_language", {})},
+                           "plural_endings", path, "neutral_language.")
+    )
 
     return LanguageRules(
         lang=lang,
@@ -317,6 +323,7 @@ def parse_rules(data: Any, path: Path) -> LanguageRules:
         neutral_words=neutral_words,
         neutral_doublet_conjunctions=conjunctions,
         neutral_midpoints=midpoints,
+        neutral_plural_endings=plural_endings,
     )
 
 
@@ -326,7 +333,7 @@ def _neutral_language(spec: Any, path: Path) -> tuple[dict[str, str], frozenset[
     forms such as étudiant·e)."""
     if not isinstance(spec, dict):
         raise _fail(path, "neutral_language", f"expected a mapping, found {spec!r}")
-    unknown = set(spec) - {"words", "doublet_conjunctions", "midpoints"}
+    unknown = set(spec) - {"words", "doublet_conjunctions", "midpoints", "plural_endings"}
     if unknown:
         raise _fail(path, f"neutral_language.{sorted(unknown)[0]}", "unknown key")
     words: dict[str, str] = {}
