@@ -111,7 +111,8 @@ def score_file(
     result line is written as soon as the documents before it are done. With a `ScoringPlan` instead of a
     Scorer, the batches can run in `jobs` worker processes or on the dask cluster at `scheduler` (see
     gendertrace.scale); `resume` continues an interrupted run, and `save_align_priors` writes the alignment
-    statistics the run learned.
+    statistics the run learned. Worker processes are spawned, so a script that uses `jobs` > 1 must call
+    this under `if __name__ == "__main__":`, as for any spawned multiprocessing.
     The run's other facts (parse cache hits, executor) are in `score_file_report`.
     """
     return score_file_report(input_path, out_path, scorer, fmt, progress, jobs=jobs, scheduler=scheduler,

@@ -25,6 +25,18 @@ def demo_copies(path: Path, copies: int, name: str = "es-en.v1.tsv") -> Path:
     return path
 
 
+def demo_size(name: str = "es-en.v1.tsv") -> tuple[int, int]:
+    """(documents, segments) of a demo file, so that tests follow the demo corpus as it grows."""
+    docs = read_corpus(DEMO / name)
+    return len(docs), sum(len(d.segments) for d in docs)
+
+
+def demo_distinct_texts(name: str = "es-en.v1.tsv") -> int:
+    """Distinct source texts plus distinct target texts of a demo file."""
+    segments = [s for d in read_corpus(DEMO / name) for s in d.segments]
+    return len({s.source for s in segments}) + len({s.target for s in segments})
+
+
 def doc_ids(path: Path) -> list[str]:
     return [json.loads(line)["doc_id"] for line in path.read_text(encoding="utf-8").splitlines()]
 

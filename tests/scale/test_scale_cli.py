@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import pytest
 from click.testing import CliRunner
-from scale_helpers import DEMO, demo_copies
+from scale_helpers import DEMO, demo_copies, demo_distinct_texts, demo_size
 
 from gendertrace.cli import main
 
@@ -43,16 +43,17 @@ def test_saving_priors_from_the_frozen_model_is_refused(tmp_path):
 @pytest.mark.slow
 def test_the_cache_line_and_the_priors_line_report_what_happened(tmp_path):
     inp = demo_copies(tmp_path / "twice.tsv", 2)
-    args = ("--cache", str(tmp_path / "cache"), "--batch-docs", "14", "--save-align-priors",
+    n, segments = demo_size()
+    args = ("--cache", str(tmp_path / "cache"), "--batch-docs", str(2 * n), "--save-align-priors",
             str(tmp_path / "es-en.priors"), "--jobs", "1")
     first = _score(tmp_path, *args, inp=inp)
     assert first.exit_code == 0, first.output
-    # Two copies of 51 segment pairs: 204 segment sides, of which 102 distinct texts, parsed once each.
-    assert "parse cache: 0 of 204 segment sides read from" in first.stderr
-    assert "; 102 texts parsed" in first.stderr
-    assert "alignment priors learned from 102 segment pairs" in first.stderr
+    # Two copies: 4 segment sides per segment pair of the file; each distinct text is parsed once.
+    assert f"parse cache: 0 of {4 * segments} segment sides read from" in first.stderr
+    assert f"; {demo_distinct_texts()} texts parsed" in first.stderr
+    assert f"alignment priors learned from {2 * segments} segment pairs" in first.stderr
     second = _score(tmp_path, "--cache", str(tmp_path / "cache"), "--jobs", "1", inp=inp)
-    assert "parse cache: 204 of 204 segment sides" in second.stderr
+    assert f"parse cache: {4 * segments} of {4 * segments} segment sides" in second.stderr
     assert "; 0 texts parsed" in second.stderr
 
 

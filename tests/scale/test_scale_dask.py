@@ -5,7 +5,7 @@ from __future__ import annotations
 from pathlib import Path
 
 import pytest
-from scale_helpers import DEMO, demo_copies
+from scale_helpers import DEMO, demo_copies, demo_size
 
 from gendertrace.api import score_file, score_file_report
 from gendertrace.scale.plan import ScoringPlan
@@ -51,10 +51,12 @@ def test_dask_and_local_agree_with_statistical_alignment_fixed_by_a_frozen_model
     # eflomal's random draws differ run to run, so sampled alignment cannot be compared byte for byte; the
     # frozen model, learned once, gives every batch statistical links that are the same wherever it runs.
     inp = demo_copies(tmp_path / "twice.tsv", 2)
+    n, _ = demo_size()
     priors = tmp_path / "es-en.priors"
-    score_file(inp, tmp_path / "learn.jsonl", ScoringPlan("es", "en", batch_docs=12, learn_priors=True),
+    score_file(inp, tmp_path / "learn.jsonl", ScoringPlan("es", "en", batch_docs=2 * n, learn_priors=True),
                save_align_priors=priors)
-    plan = ScoringPlan("es", "en", batch_docs=6, align_mode="frozen", align_priors=str(priors))
+    assert priors.is_file()
+    plan = ScoringPlan("es", "en", batch_docs=3, align_mode="frozen", align_priors=str(priors))
     local, remote = tmp_path / "local.jsonl", tmp_path / "dask.jsonl"
     score_file(inp, local, plan, jobs=2)
     score_file(inp, remote, plan, scheduler=cluster.scheduler_address)

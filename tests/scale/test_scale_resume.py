@@ -12,7 +12,7 @@ import time
 from pathlib import Path
 
 import pytest
-from scale_helpers import DEMO, demo_copies, doc_ids
+from scale_helpers import DEMO, demo_copies, demo_size, doc_ids
 
 from gendertrace.api import score_file, score_file_report
 from gendertrace.errors import GendertraceError
@@ -37,7 +37,7 @@ def test_resume_repairs_a_torn_line_and_finishes_the_run(tmp_path):
     report = score_file_report(inp, cut, plan, resume=True)
     assert report.resumed_after == 3
     assert cut.read_bytes() == whole.read_bytes()
-    assert report.summary.documents == 7  # the summary covers the kept results too
+    assert report.summary.documents == demo_size()[0]  # the summary covers the kept results too
 
 
 def test_resuming_a_finished_run_writes_nothing_more(tmp_path):
@@ -46,7 +46,7 @@ def test_resuming_a_finished_run_writes_nothing_more(tmp_path):
     score_file(DEMO / "es-en.v1.tsv", out, plan)
     before = out.read_bytes()
     report = score_file_report(DEMO / "es-en.v1.tsv", out, plan, resume=True)
-    assert report.resumed_after == 7
+    assert report.resumed_after == demo_size()[0]
     assert out.read_bytes() == before
 
 
@@ -79,7 +79,8 @@ def _score_cmd(inp: Path, out: Path, cache: Path, *extra: str) -> list[str]:
 
 
 def test_a_run_killed_mid_way_resumes_to_the_uninterrupted_result(tmp_path):
-    inp = demo_copies(tmp_path / "many.tsv", 15)  # 105 documents
+    inp = demo_copies(tmp_path / "many.tsv", 15)
+    total = 15 * demo_size()[0]
     whole, killed = tmp_path / "whole.jsonl", tmp_path / "killed.jsonl"
     score_file(inp, whole, _plan(tmp_path, batch_docs=1))
 
@@ -96,7 +97,7 @@ def test_a_run_killed_mid_way_resumes_to_the_uninterrupted_result(tmp_path):
     proc.wait(30)
     assert proc.returncode == -signal.SIGKILL
     done = killed.read_bytes().count(b"\n")
-    assert 5 <= done < 105
+    assert 5 <= done < total
     signature = json.loads(Path(str(killed) + ".signature.json").read_text(encoding="utf-8"))
     assert signature["state"] == "incomplete"
 
@@ -104,4 +105,27 @@ def test_a_run_killed_mid_way_resumes_to_the_uninterrupted_result(tmp_path):
                              text=True, timeout=300)
     assert resumed.returncode == 0, resumed.stderr
     assert killed.read_bytes() == whole.read_bytes()
-    assert len(doc_ids(killed)) == len(set(doc_ids(killed))) == 105
+    assert len(doc_ids(killed)) == len(set(doc_ids(killed))) == total
+
+
+def test_killing_a_parallel_run_leaves_no_worker_behind(tmp_path):
+    psutil = pytest.importorskip("psutil")  # comes with dask.distributed, in the test extra
+    inp = demo_copies(tmp_path / "many.tsv", 15)
+    out = tmp_path / "killed.jsonl"
+    cmd = _score_cmd(inp, out, tmp_path / "cold")
+    cmd[cmd.index("--jobs") + 1] = "2"
+    proc = subprocess.Popen(cmd, stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL)
+    deadline = time.monotonic() + 120
+    while time.monotonic() < deadline and proc.poll() is None:
+        if out.exists() and out.read_bytes().count(b"\n") >= 2:
+            break
+        time.sleep(0.02)
+    assert proc.poll() is None, "the run finished before it could be killed"
+    workers = psutil.Process(proc.pid).children(recursive=True)
+    assert len(workers) >= 2
+    os.kill(proc.pid, signal.SIGKILL)
+    proc.wait(30)
+    _, alive = psutil.wait_procs(workers, timeout=20)
+    for p in alive:
+        p.kill()  # clean up before failing
+    assert alive == []

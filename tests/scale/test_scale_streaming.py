@@ -7,7 +7,7 @@ import json
 from pathlib import Path
 
 import pytest
-from scale_helpers import DEMO, HEADER, demo_copies, doc_ids
+from scale_helpers import DEMO, HEADER, demo_copies, demo_size, doc_ids
 
 from gendertrace import Scorer
 from gendertrace.api import score_file, score_file_report
@@ -40,15 +40,31 @@ def test_streamed_results_are_the_scorers_in_input_order(tmp_path):
 def test_each_batch_is_written_before_the_next_one_is_scored(tmp_path, monkeypatch):
     out = tmp_path / "out.jsonl"
     seen = []
-    real = executors.score_batch_with
+    real = executors.iter_outcomes
 
     def spy(scorer, batch):
         seen.append((batch.start, len(out.read_text(encoding="utf-8").splitlines())))
         return real(scorer, batch)
 
-    monkeypatch.setattr(executors, "score_batch_with", spy)
+    monkeypatch.setattr(executors, "iter_outcomes", spy)
     score_file(V1, out, _plan(tmp_path, batch_docs=2))
-    assert seen == [(0, 0), (2, 2), (4, 4), (6, 6)]  # seven demo documents in batches of two
+    n, _ = demo_size()
+    assert seen == [(k, k) for k in range(0, n, 2)]  # batch k starts when the k documents before it are out
+
+
+def test_within_a_batch_each_result_is_written_before_the_next_document_is_scored(tmp_path, monkeypatch):
+    out = tmp_path / "out.jsonl"
+    written_before = []
+    real = Scorer.score_parsed
+
+    def spy(self, pd, alignments):
+        written_before.append(len(out.read_text(encoding="utf-8").splitlines()))
+        return real(self, pd, alignments)
+
+    monkeypatch.setattr(Scorer, "score_parsed", spy)
+    n, _ = demo_size()
+    score_file(V1, out, _plan(tmp_path, batch_docs=n))  # the whole file in one batch
+    assert written_before == list(range(n))
 
 
 def test_rows_of_one_document_apart_are_gathered_as_the_input_contract_allows(tmp_path):
@@ -102,14 +118,15 @@ def test_a_second_engine_version_parses_only_its_new_targets(tmp_path):
 
 
 def test_the_frozen_alignment_model_does_not_depend_on_the_batch_size(tmp_path):
-    inp = demo_copies(tmp_path / "twice.tsv", 2)  # 14 documents, 102 segments: one batch eflomal trains on
+    inp = demo_copies(tmp_path / "twice.tsv", 2)  # two copies: one batch large enough for eflomal
+    n, segments = demo_size()
     priors = tmp_path / "es-en.priors"
-    plan = _plan(tmp_path, batch_docs=14, learn_priors=True)
+    plan = _plan(tmp_path, batch_docs=2 * n, learn_priors=True)
     learnt = score_file_report(inp, tmp_path / "learn.jsonl", plan, save_align_priors=priors)
-    assert learnt.learned.sentences == 102 and priors.is_file()
+    assert learnt.learned.sentences == 2 * segments and priors.is_file()
     frozen = {"align_mode": "frozen", "align_priors": str(priors)}
     score_file(inp, tmp_path / "one.jsonl", _plan(tmp_path, batch_docs=1, **frozen))
-    score_file(inp, tmp_path / "all.jsonl", _plan(tmp_path, batch_docs=14, **frozen))
+    score_file(inp, tmp_path / "all.jsonl", _plan(tmp_path, batch_docs=2 * n, **frozen))
     assert (tmp_path / "one.jsonl").read_bytes() == (tmp_path / "all.jsonl").read_bytes()
 
 
@@ -119,5 +136,5 @@ def test_the_signature_records_the_batching_and_the_alignment(tmp_path):
     signature = json.loads(Path(str(out) + ".signature.json").read_text(encoding="utf-8"))
     assert signature["batch_docs"] == 3
     assert signature["alignment"] == "eflomal sampled per batch"
-    assert signature["documents"] == 7
+    assert signature["documents"] == demo_size()[0]
     assert "state" not in signature  # the run finished

@@ -9,6 +9,8 @@ from __future__ import annotations
 
 import multiprocessing
 import os
+import threading
+import time
 from collections import deque
 from collections.abc import Callable, Iterable, Iterator
 from concurrent.futures import ProcessPoolExecutor
@@ -16,7 +18,7 @@ from dataclasses import replace
 
 from gendertrace.errors import GendertraceError
 from gendertrace.scale.plan import ScoringPlan, scorer_for
-from gendertrace.scale.work import Batch, BatchOutcome, score_batch, score_batch_with
+from gendertrace.scale.work import Batch, BatchOutcome, iter_outcomes, score_batch
 
 DASK_HINT = "the dask executor needs dask.distributed: pip install 'gendertrace[dask]'"
 
@@ -63,11 +65,26 @@ class InlineExecutor:
     def run(self, batches: Iterable[Batch]) -> Iterator[BatchOutcome]:
         scorer = self.scorer if self.scorer is not None else scorer_for(self.plan)
         for batch in batches:
-            yield score_batch_with(scorer, batch)
+            yield from iter_outcomes(scorer, batch)  # each document as soon as it is scored
 
 
 def _start_worker(plan: ScoringPlan) -> None:
+    _exit_with_parent()
     scorer_for(plan)  # rules and the aligner once per worker; pipelines load on their first uncached text
+
+
+def _exit_with_parent(interval: float = 0.5) -> None:
+    """End this worker when the process that started it is gone (killed, say): pool workers otherwise wait
+    for work forever, holding their pipelines in memory."""
+    parent = os.getppid()
+
+    def watch() -> None:
+        while True:
+            time.sleep(interval)
+            if os.getppid() != parent:
+                os._exit(1)  # nobody is left to read this worker's results
+
+    threading.Thread(target=watch, name="parent-watch", daemon=True).start()
 
 
 class ProcessExecutor:

@@ -32,7 +32,8 @@ class Batch:
 
 @dataclass(frozen=True)
 class BatchOutcome:
-    """What a worker sends back: each document's output line and statistics, in input order."""
+    """What a worker sends back: output lines and statistics of consecutive documents from `start` on, in
+    input order (a whole batch from worker processes, one document at a time in this process)."""
 
     index: int
     start: int
@@ -60,21 +61,47 @@ def iter_batches(documents: Iterable[Document], size: int, first: int = 0) -> It
         yield Batch(start // size, start, tuple(run))
 
 
-def score_batch_with(scorer: Scorer, batch: Batch) -> BatchOutcome:
-    """Parse, align and score one batch with the given Scorer."""
+def iter_outcomes(scorer: Scorer, batch: Batch) -> Iterator[BatchOutcome]:
+    """Parse and align one batch with the given Scorer, then yield each document's outcome as soon as it is
+    scored (the first outcome also carries the batch's parsing counts and learned alignment counts)."""
     counters = [p for p in (scorer.src_parser, scorer.tgt_parser) if isinstance(p, CachedParser)]
     before = [(p.asked, p.hits, p.parsed) for p in counters]
-    results = list(scorer.score_parsed_batch(scorer.parse(batch.documents)))
+    parsed = scorer.parse(batch.documents)
+    aligned = iter(scorer.score_parsed_batch(parsed))  # aligns the whole batch, then scores one by one
+    first = next(aligned, None)
+    if first is None:
+        return
     take = getattr(scorer.statistical_aligner, "take_learned", None)
-    return BatchOutcome(
+    yield BatchOutcome(
         index=batch.index,
         start=batch.start,
-        lines=tuple(json.dumps(r.to_json(), ensure_ascii=False) for r in results),
-        stats=tuple(r.stats for r in results),
+        lines=(json.dumps(first.to_json(), ensure_ascii=False),),
+        stats=(first.stats,),
         learned=take() if take else None,
         sides=sum(p.asked for p in counters) - sum(b[0] for b in before),
         cache_hits=sum(p.hits for p in counters) - sum(b[1] for b in before),
         parsed=sum(p.parsed for p in counters) - sum(b[2] for b in before),
+    )
+    for k, result in enumerate(aligned, 1):
+        yield BatchOutcome(batch.index, batch.start + k, (json.dumps(result.to_json(), ensure_ascii=False),),
+                           (result.stats,))
+
+
+def score_batch_with(scorer: Scorer, batch: Batch) -> BatchOutcome:
+    """Parse, align and score one batch with the given Scorer; one outcome for the whole batch."""
+    parts = list(iter_outcomes(scorer, batch))
+    if not parts:
+        return BatchOutcome(batch.index, batch.start, (), ())
+    head = parts[0]
+    return BatchOutcome(
+        index=batch.index,
+        start=batch.start,
+        lines=tuple(line for o in parts for line in o.lines),
+        stats=tuple(st for o in parts for st in o.stats),
+        learned=head.learned,
+        sides=head.sides,
+        cache_hits=head.cache_hits,
+        parsed=head.parsed,
     )
 
 
