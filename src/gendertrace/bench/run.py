@@ -301,6 +301,10 @@ def run_benchmark(
         lines.append(
             f"| {r.direction} | {r.tokens} | {r.seconds:.1f} | {r.tokens / r.seconds:.0f} | {ps} | {ratio} |"
         )
+    # Scale: memory, cores, re-scoring with a warm parse cache, the distributed executor (gendertrace.bench.scale).
+    from gendertrace.bench.scale import scale_section
+
+    lines += [""] + scale_section(data)
     # Treebank sentences stay out of the written report: it names documents, segments and words only.
     lines += ["", "## The 20 most confident false alarms (clean runs)", ""]
     alarms = sorted(
