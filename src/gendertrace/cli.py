@@ -28,13 +28,15 @@ def _scorer(src_lang, tgt_lang, parser, src_model, tgt_model, src_conllu, tgt_co
 
 def _common_options(f):
     options = [
-        click.option("--src-lang", "-s", required=True, help="Source language code (en, es, fr; de/it/pt need CoNLL-U)."),
+        click.option("--src-lang", "-s", required=True,
+                     help="Source language code (en, es, fr; de/it/pt need CoNLL-U)."),
         click.option("--tgt-lang", "-t", required=True, help="Target language code."),
-        click.option("--format", "fmt", type=click.Choice(["tsv", "csv", "jsonl"]), default=None,
-                     help="Input format; by default taken from the file extension."),
+        click.option("--format", "fmt", type=click.Choice(["tsv", "csv", "jsonl", "xliff", "tmx"]), default=None,
+                     help="Input format; by default taken from the file extension (.tsv .csv .jsonl .xlf .tmx)."),
         click.option("--parser", type=click.Choice(["spacy", "stanza"]), default="spacy", show_default=True,
                      help="Parsing backend for sides not given as CoNLL-U."),
-        click.option("--src-model", default=None, help="Pipeline name for the source language (overrides the default)."),
+        click.option("--src-model", default=None,
+                     help="Pipeline name for the source language (overrides the default)."),
         click.option("--tgt-model", default=None, help="Pipeline name for the target language."),
         click.option("--src-conllu", multiple=True, type=click.Path(exists=True, dir_okay=False),
                      help="Pre-parsed source sentences (CoNLL-U, matched by their '# text'); repeatable."),
