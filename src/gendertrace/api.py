@@ -104,6 +104,7 @@ def score_file(
     scheduler: str | None = None,
     resume: bool = False,
     save_align_priors: str | Path | None = None,
+    tmx_group: str | None = None,
 ) -> Summary:
     """Read INPUT, score it, write OUT (JSONL) and OUT.signature.json; return the corpus summary.
 
@@ -113,10 +114,12 @@ def score_file(
     gendertrace.scale); `resume` continues an interrupted run, and `save_align_priors` writes the alignment
     statistics the run learned. Worker processes are spawned, so a script that uses `jobs` > 1 must call
     this under `if __name__ == "__main__":`, as for any spawned multiprocessing.
-    The run's other facts (parse cache hits, executor) are in `score_file_report`.
+    `tmx_group` names the TMX `<prop type="...">` whose value groups translation units into documents (by
+    default a TMX file is one document). The run's other facts (parse cache hits, executor) are in
+    `score_file_report`.
     """
     return score_file_report(input_path, out_path, scorer, fmt, progress, jobs=jobs, scheduler=scheduler,
-                             resume=resume, save_align_priors=save_align_priors).summary
+                             resume=resume, save_align_priors=save_align_priors, tmx_group=tmx_group).summary
 
 
 def score_file_report(
@@ -130,6 +133,7 @@ def score_file_report(
     scheduler: str | None = None,
     resume: bool = False,
     save_align_priors: str | Path | None = None,
+    tmx_group: str | None = None,
 ) -> RunReport:
     """`score_file`, returning the whole run report (summary, executor, cache hits, learned priors)."""
     from gendertrace.scale.plan import ScoringPlan
@@ -137,7 +141,7 @@ def score_file_report(
 
     kind = {"plan": scorer} if isinstance(scorer, ScoringPlan) else {"scorer": scorer}
     return score_stream(input_path, out_path, fmt=fmt, jobs=jobs, scheduler=scheduler, resume=resume,
-                        progress=progress, save_priors=save_align_priors, **kind)
+                        progress=progress, save_priors=save_align_priors, tmx_group=tmx_group, **kind)
 
 
 def explain_document(scorer: Scorer, doc: Document) -> str:

@@ -143,10 +143,13 @@ def main() -> None:
                    "--scheduler.")
 @click.option("--scheduler", default=None, metavar="ADDRESS",
               help="Address of the dask scheduler, e.g. tcp://10.1.2.3:8786 (with --executor dask).")
+@click.option("--tmx-group", default=None, metavar="PROP",
+              help="TMX input: group translation units into documents by the value of <prop type=\"PROP\"> "
+                   "(default: one document per file).")
 @_declared_options
 def score(input_path, src_lang, tgt_lang, fmt, parser, src_model, tgt_model, src_conllu, tgt_conllu,
           min_confidence, out, fail_under, progress, quiet, jobs, batch_docs, cache_dir, no_cache,
-          cache_max_mb, align_mode, align_priors, save_align_priors, resume, executor, scheduler,
+          cache_max_mb, align_mode, align_priors, save_align_priors, resume, executor, scheduler, tmx_group,
           entities, policy_file, neutral_for_binary, assumption_kinds):
     """Score a translated document set INPUT (TSV, CSV or JSONL with doc_id, seg_id, source, target).
 
@@ -196,7 +199,7 @@ def score(input_path, src_lang, tgt_lang, fmt, parser, src_model, tgt_model, src
         report = score_file_report(
             input_path, out, plan, fmt=fmt, progress=sys.stderr.isatty() if progress is None else progress,
             jobs=jobs or available_cores(), scheduler=scheduler, resume=resume,
-            save_align_priors=save_align_priors,
+            save_align_priors=save_align_priors, tmx_group=tmx_group,
         )
     except GendertraceError as exc:
         _fail(exc)

@@ -96,3 +96,21 @@ def test_malformed_tmx_names_line_and_column(tmp_path):
     line = line_of(text, "</sgе>")
     assert err.value.line == line
     assert f"bad.tmx:{line}: malformed XML at line {line}, column" in str(err.value)
+
+
+@pytest.mark.slow
+def test_score_groups_tmx_units_by_the_named_property(tmp_path):
+    # The command line reaches the TMX grouping: one result line per <prop type="x-document"> value.
+    import json
+
+    from click.testing import CliRunner
+
+    from gendertrace.cli import main
+
+    path = write(tmp_path, TMX)
+    out = tmp_path / "out.jsonl"
+    result = CliRunner().invoke(main, ["score", str(path), "-s", "es", "-t", "en", "-o", str(out), "--no-cache",
+                                       "--jobs", "1", "--tmx-group", DEFAULT_GROUP_PROP, "-q"])
+    assert result.exit_code == 0, result.output
+    assert [json.loads(line)["doc_id"] for line in out.read_text(encoding="utf-8").splitlines()] == [
+        "depot", "bakery"]

@@ -45,7 +45,9 @@ class RunReport:
     priors_written: str | None = None
 
 
-def open_documents(path: str | Path, fmt: str | None = None) -> tuple[Callable[[], Iterator[Document]], int]:
+def open_documents(
+    path: str | Path, fmt: str | None = None, tmx_group: str | None = None
+) -> tuple[Callable[[], Iterator[Document]], int]:
     """A way to read the input's documents again and again, and how many there are.
 
     Streams when the rows of each document are consecutive; otherwise (rows of one document apart, which the
@@ -53,10 +55,10 @@ def open_documents(path: str | Path, fmt: str | None = None) -> tuple[Callable[[
     before a single result is written.
     """
     try:
-        count = sum(1 for _ in iter_documents(path, fmt))
-        return (lambda: iter_documents(path, fmt)), count
+        count = sum(1 for _ in iter_documents(path, fmt, tmx_group))
+        return (lambda: iter_documents(path, fmt, tmx_group)), count
     except InputError:
-        docs = read_corpus(path, fmt)  # raises the same error again unless the rows were only apart
+        docs = read_corpus(path, fmt, tmx_group)  # raises the same error again unless the rows were only apart
         return (lambda: iter(docs)), len(docs)
 
 
@@ -76,6 +78,7 @@ def score_stream(
     resume: bool = False,
     progress: bool = False,
     save_priors: str | Path | None = None,
+    tmx_group: str | None = None,
 ) -> RunReport:
     """Score INPUT into OUT (JSONL, input order) and OUT.signature.json; see the module docstring.
 
@@ -88,7 +91,7 @@ def score_stream(
         raise ValueError("worker processes and clusters build their own Scorer: give a ScoringPlan")
     main_scorer = scorer if scorer is not None else scorer_for(plan)  # type: ignore[arg-type]
     size = plan.batch_docs if plan is not None else main_scorer.settings.batch_size
-    documents, total = open_documents(input_path, fmt)
+    documents, total = open_documents(input_path, fmt, tmx_group)
     out_path = Path(out_path)
     out_path.parent.mkdir(parents=True, exist_ok=True)
     sidecar = Path(str(out_path) + ".signature.json")
