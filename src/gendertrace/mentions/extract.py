@@ -226,51 +226,13 @@ def extract_mentions(
             if gender == "epicene":
                 marks = []  # grammatical gender only: "la persona" may be anyone
             masc_key = counterpart if gender == "fem" else t.text.lower()
-            out.append(
-                Mention(
-                    id=f"{prefix}{t.i}",
-                    side=side,
-                    seg=seg,
-                    head=t.i,
-                    tokens=(t.i,),
-                    kind="noun",
-                    text=t.text,
-                    start=t.start,
-                    end=t.end,
-                    number="sing",
-                    person="3",
-                    role=role,
-                    clause=clause,
-                    key=masc_key,
-                    marks=tuple(marks),
-                    sent=t.sent,
-                )
-            )
+            out.append(_noun_mention(prefix, side, seg, t, role, clause, masc_key, marks))
             continue
         # Singular forms marking no binary gender ("niñe", "l'étudiant·e"): a person noun, a neutral mark.
         if _neutral_word(parsed, t, rules) == "sing" and t.upos in ("NOUN", "PROPN"):
             role, clause = _role_and_clause(parsed, t.i)
             mark = _mark(side, seg, seg_id, t, "neutral", "morphology", W_LEXICAL, NEUTRAL_FORM_RULE)
-            out.append(
-                Mention(
-                    id=f"{prefix}{t.i}",
-                    side=side,
-                    seg=seg,
-                    head=t.i,
-                    tokens=(t.i,),
-                    kind="noun",
-                    text=t.text,
-                    start=t.start,
-                    end=t.end,
-                    number="sing",
-                    person="3",
-                    role=role,
-                    clause=clause,
-                    key=t.text.lower(),
-                    marks=(mark,),
-                    sent=t.sent,
-                )
-            )
+            out.append(_noun_mention(prefix, side, seg, t, role, clause, t.text.lower(), [mark]))
             continue
         # Pronouns (not an article the tagger misread before a person noun).
         if t.i + 1 in noun_like and rules.article_gender(t.text) is not None:
@@ -520,6 +482,14 @@ def _gender_doublet(parsed: ParsedText, t: Token, rules: LanguageRules) -> bool:
         if theirs and not (theirs & mine) and None not in theirs:
             return True
     return False
+
+
+def _noun_mention(prefix, side, seg, t: Token, role: str, clause: int, key: str, marks) -> Mention:
+    """A singular person noun of one token."""
+    return Mention(
+        id=f"{prefix}{t.i}", side=side, seg=seg, head=t.i, tokens=(t.i,), kind="noun", text=t.text, start=t.start,
+        end=t.end, number="sing", person="3", role=role, clause=clause, key=key, marks=tuple(marks), sent=t.sent,
+    )
 
 
 def _pick_pronoun_form(t: Token, rules: LanguageRules):
