@@ -15,7 +15,7 @@ from gendertrace.findings.detect import detect_findings
 from gendertrace.link.align import anchor_alignment, merge, statistical_alignments
 from gendertrace.link.linker import link_mentions
 from gendertrace.mentions.extract import SINGULAR_THEY_RULE, extract_mentions, name_key, singular_they_ok
-from gendertrace.model import Document, DocumentResult, DocumentStats, ParsedDocument, ParsedText
+from gendertrace.model import Document, DocumentResult, ParsedDocument, ParsedText
 from gendertrace.parse.base import Parser, get_parser
 from gendertrace.rules import LanguageRules, load_lexicon, load_rules, rules_digest
 
@@ -220,8 +220,3 @@ def _person_names(parses: Sequence[ParsedText]) -> set[str]:
                 out.update(name_key(w) for w in run if len(w) > 2)
                 run = []
     return out
-
-
-def empty_result(doc: Document, src_lang: str, tgt_lang: str, why: str) -> DocumentResult:
-    stats = DocumentStats(len(doc.segments), 0, 0, 0, 0, {"contradiction": 0, "inconsistency": 0, "assumption": 0})
-    return DocumentResult(doc.doc_id, src_lang, tgt_lang, (), (), stats, skipped=why)

@@ -28,7 +28,6 @@ def _words(p: ParsedText) -> list[str]:
 def statistical_alignments(
     sources: Sequence[ParsedText],
     targets: Sequence[ParsedText],
-    seed: int = 1,
     *,
     priors: str | None = None,
     threads: int | None = None,
