@@ -29,7 +29,6 @@ class ScoreSettings:
     parser: str = "spacy"
     src_model: str | None = None
     tgt_model: str | None = None
-    extra: dict = field(default_factory=dict)
     entity_sheet: EntitySheet | None = None  # declared pronouns and genders (docs/entities.md)
     policy: Policy = field(default_factory=Policy)
 

@@ -141,12 +141,11 @@ def _spacy_only(scorer: Scorer, docs: Sequence[Document]) -> float:
 
 def evidence_accuracy(data: Path, lang: str) -> tuple[int, int]:
     """Gendered evidence tokens the tagger-based extraction reports, and how many agree with gold UD Gender."""
-    from gendertrace.bench.pud import load_pud_pair as _load
     from gendertrace.mentions.extract import extract_mentions
     from gendertrace.parse import get_parser
 
     other = "en" if lang != "en" else "es"
-    docs = _load(data, lang, other)
+    docs = load_pud_pair(data, lang, other)
     sents = [p.source for d in docs for p in d.pairs]
     parser = get_parser(lang)
     rules = load_rules(lang)

@@ -297,10 +297,6 @@ def _checkable(m: Mention, links: dict[str, Link], e: Entity) -> bool:
     return via is not None and via.kind == "pronoun" and via.case in ("acc", "dat")
 
 
-def _first_index(refs: Sequence[Reference], gender: str) -> int:
-    return next(k for k, r in enumerate(refs) if r.gender == gender)
-
-
 def _finding(
     kind, r: Reference, expected, e: Entity, conf: float, support, seg_ids, basis: str = "the source says"
 ) -> Finding:

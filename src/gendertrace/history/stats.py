@@ -127,15 +127,21 @@ class PairedBootstrap:
     seed: int | None
 
 
-def paired_bootstrap(a: tuple[Sequence[int], Sequence[int]], b: tuple[Sequence[int], Sequence[int]],
-                     n_samples: int = 1000, seed: int | None = 13) -> PairedBootstrap:
-    """Paired bootstrap of rate(B) - rate(A); A and B are (consistent, checked) per document, same order."""
+def _paired(a: tuple[Sequence[int], Sequence[int]], b: tuple[Sequence[int], Sequence[int]]):
+    """Per-document count arrays of two paired runs and their corpus rates; ValueError if they cannot pair."""
     sa_, sb_ = _as_counts(*a), _as_counts(*b)
     if sa_.shape != sb_.shape:
         raise ValueError("paired runs need the same documents")
     ra, rb = rate(*sa_.sum(0)), rate(*sb_.sum(0))
     if ra is None or rb is None:
         raise ValueError("a run has nothing checked: no rate to compare")
+    return sa_, sb_, ra, rb
+
+
+def paired_bootstrap(a: tuple[Sequence[int], Sequence[int]], b: tuple[Sequence[int], Sequence[int]],
+                     n_samples: int = 1000, seed: int | None = 13) -> PairedBootstrap:
+    """Paired bootstrap of rate(B) - rate(A); A and B are (consistent, checked) per document, same order."""
+    sa_, sb_, ra, rb = _paired(a, b)
     scores_a, scores_b = [], []
     for idx in resample_indices(len(sa_), n_samples, seed):
         scores_a.append(_ratio(sa_[idx, 0].sum(1), sa_[idx, 1].sum(1)))
@@ -164,12 +170,7 @@ class RandomizationTest:
 def approximate_randomization(a: tuple[Sequence[int], Sequence[int]], b: tuple[Sequence[int], Sequence[int]],
                               n_trials: int = 10000, seed: int | None = 13) -> RandomizationTest:
     """Two-sided paired approximate randomization test of rate(A) = rate(B), swapping whole documents."""
-    sa_, sb_ = _as_counts(*a), _as_counts(*b)
-    if sa_.shape != sb_.shape:
-        raise ValueError("paired runs need the same documents")
-    ra, rb = rate(*sa_.sum(0)), rate(*sb_.sum(0))
-    if ra is None or rb is None:
-        raise ValueError("a run has nothing checked: no rate to compare")
+    sa_, sb_, ra, rb = _paired(a, b)
     observed = abs(rb - ra)
     rng = np.random.default_rng(seed)
     n = len(sa_)
