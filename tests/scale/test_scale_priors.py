@@ -92,3 +92,25 @@ def test_with_priors_a_small_batch_is_aligned_and_its_links_can_be_learned(tmp_p
     learned = aligner.take_learned()
     assert learned.sentences == 2 and learned.lexical[("jueza", "judge")] == 2
     assert aligner.take_learned().sentences == 0
+
+
+def test_with_priors_the_sampler_runs_a_shortened_schedule(tmp_path, monkeypatch):
+    # The informed sampler's schedule is a fraction of eflomal's; the uninformed one keeps eflomal's own.
+    from gendertrace.link import align
+
+    seen = []
+    real = eflomal.Aligner
+
+    class Recording(real):
+        def __init__(self, **kw):
+            seen.append(kw)
+            super().__init__(**kw)
+
+    monkeypatch.setattr(eflomal, "Aligner", Recording)
+    path = _priors(tmp_path, ["LEX\tla\tthe\t50", "LEX\tjueza\tjudge\t50"])
+    src, tgt = [parsed("la jueza")], [parsed("the judge", "en")]
+    assert statistical_alignments(src, tgt, priors=str(path)) is not None
+    many_src, many_tgt = src * MIN_STATISTICAL, tgt * MIN_STATISTICAL
+    assert statistical_alignments(many_src, many_tgt) is not None
+    assert [kw["rel_iterations"] for kw in seen] == [align.PRIORS_REL_ITERATIONS, 1.0]
+    assert 0 < align.PRIORS_REL_ITERATIONS < 1
