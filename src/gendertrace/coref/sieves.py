@@ -340,8 +340,10 @@ def _salience(cand: Mention, m: Mention) -> float:
 
 
 def _pick_antecedent(m, ms, cl, parses, use_gender):
-    """The best preceding candidate for a pronoun or zero subject, and the compatible alternatives near it."""
+    """The best preceding candidate for a pronoun or zero subject, and the compatible alternatives near it
+    (a choice made only because nothing else was there counts itself as its alternative: it is uncertain)."""
     scored: dict[str, tuple[float, Mention]] = {}
+    fallback = None
     for c in ms:
         # A possessive may point forward to the subject of its own clause ("Por su parte, la ingeniera...").
         cataphoric = (
@@ -353,7 +355,15 @@ def _pick_antecedent(m, ms, cl, parses, use_gender):
         )
         if (_order(c) >= _order(m) and not cataphoric) or m.seg - c.seg > PRONOUN_WINDOW:
             continue
+        # A possessive is not the person it is the determiner of ("su hijo", "his son": the i-within-i condition).
+        if m.pron_type == "possessive" and c.seg == m.seg and parses[m.seg].tokens[m.head].head == c.head:
+            continue
         if c.kind == "pronoun" and c.pron_type == "possessive" and c.seg == m.seg:
+            # Two possessives of one sentence may belong to two people ("Ana y sus socios ... sus planes"):
+            # an earlier one is the antecedent only when nothing else is ("su sueño ... su carrera").
+            if m.pron_type == "possessive" and _order(c) < _order(m) and _compatible(cl.members(c.id), [m],
+                                                                                     use_gender):
+                fallback = c
             continue
         if not c.animate or c.person == "1":
             continue  # clitics that may stand for things are anaphors only; a quoted "I" belongs to its speaker
@@ -418,7 +428,7 @@ def _pick_antecedent(m, ms, cl, parses, use_gender):
         if root not in scored or s > scored[root][0]:
             scored[root] = (s, c)
     if not scored:
-        return None, []
+        return fallback, ([fallback] if fallback is not None else [])  # a fallback is never certain
     ranked = sorted(scored.values(), key=lambda x: -x[0])
     best_score, best = ranked[0]
     alternatives = [c for s, c in ranked[1:] if best_score - s < ALTERNATIVE_MARGIN]
