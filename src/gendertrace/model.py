@@ -71,6 +71,13 @@ class Token:
         return self.feats.get(name)
 
     @property
+    def finite(self) -> bool:
+        """A finite verb form: VerbForm=Fin, or a Mood with no VerbForm (UD gives Mood to finite forms only,
+        and some treebanks leave VerbForm off them)."""
+        form = self.feats.get("VerbForm")
+        return form == "Fin" or (form is None and "Mood" in self.feats)
+
+    @property
     def gender(self) -> str | None:
         """The token's UD Gender in the project's vocabulary, or None (also for Masc,Fem ambiguity)."""
         return UD_GENDER.get(self.feats.get("Gender", ""))

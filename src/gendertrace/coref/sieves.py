@@ -277,8 +277,8 @@ def _nonfinite_under(parsed: ParsedText, clause: int) -> int:
     if clause < 0:
         return -1
     t = parsed.tokens[clause]
-    finite = t.feat("VerbForm") == "Fin" or any(
-        k.feat("VerbForm") == "Fin" for k in parsed.children(clause) if k.deprel in ("aux", "cop", "aux:pass")
+    finite = t.finite or any(
+        k.finite for k in parsed.children(clause) if k.deprel in ("aux", "cop", "aux:pass")
     )
     if finite or t.is_root or t.deprel not in ("xcomp", "ccomp", "advcl"):
         return -1
@@ -346,10 +346,13 @@ def _pick_antecedent(m, ms, cl, parses, use_gender):
     fallback = None
     for c in ms:
         # A possessive may point forward to the subject of its own clause ("Por su parte, la ingeniera...").
+        # So may one inside a non-finite clause, whose understood subject is that of the clause it depends on
+        # ("Alejándose de su discurso, la candidata...").
         cataphoric = (
             m.pron_type == "possessive"
             and c.seg == m.seg
-            and c.clause == m.clause
+            and c.clause in (m.clause, _nonfinite_under(parses[m.seg], m.clause))
+            and c.clause >= 0
             and c.role in ("nsubj", "nsubj:pass")
             and c.kind in ("name", "noun")
         )

@@ -701,11 +701,11 @@ def _zero_subjects(parsed, seg, seg_id, side, rules, prefix, quoted=frozenset())
             continue
         kids = parsed.children(t.i)
         finite = None
-        if t.upos in ("VERB", "AUX") and t.feat("VerbForm") == "Fin":
+        if t.upos in ("VERB", "AUX") and t.finite:
             finite = t
         else:
             for k in kids:
-                if k.deprel in ("cop", "aux", "aux:pass") and k.feat("VerbForm") == "Fin":
+                if k.deprel in ("cop", "aux", "aux:pass") and k.finite:
                     finite = k
                     break
         if finite is None or finite.feat("Number") != "Sing":
