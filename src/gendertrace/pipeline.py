@@ -45,7 +45,9 @@ def pronoun_pairs(src: LanguageRules, tgt: LanguageRules) -> dict[tuple[str, str
                     if x.type != y.type or x.person != y.person or not (
                             x.number == y.number or None in (x.number, y.number)):
                         continue
-                    if x.case and y.case and x.case != y.case:
+                    # Object cases pair with each other: English "him" serves as both (objective case), and a
+                    # dative clitic often translates as a direct object ("le permite" / "allowed him").
+                    if x.case and y.case and x.case != y.case and {x.case, y.case} != {"acc", "dat"}:
                         continue
                     score = 1.0 + (0.5 if x.case and x.case == y.case else 0.0)
                     score += 1.0 if x.gender and x.gender == y.gender else 0.0

@@ -164,16 +164,15 @@ def resolve_chains(
             if holder is not None and holder.kind in ("name", "noun") and holder is not m:
                 try_union(holder, m)  # "la incorporación de Julián Ferrás como secretario": no verb, a name
                 continue
-            for c in ms:
-                if (
-                    c is not m
-                    and c.seg == m.seg
-                    and c.clause == verb
-                    and c.role in ("nsubj", "nsubj:pass")
-                    and c.pron_type != "possessive"
-                ):
-                    try_union(c, m)
-                    break
+            holder = _clause_subject(ms, m, verb)
+            if holder is None:
+                # A non-finite clause has its subject understood: the object of the verb above where it has
+                # one ("le permite seguir como secretaria": object control), else that verb's subject.
+                above = _nonfinite_under(parses[m.seg], verb)
+                if above >= 0:
+                    holder = _clause_object(ms, m, above) or _clause_subject(ms, m, above)
+            if holder is not None:
+                try_union(holder, m)
 
     # Pass 3: partial name match: one name's words contained in another's ("Zubelzu" in "Amaia Zubelzu").
     for i, a in enumerate(names):
@@ -256,6 +255,16 @@ def resolve_chains(
     return Resolution(chains, chain_of, certainty, antecedent)
 
 
+def _clause_subject(ms: Sequence[Mention], m: Mention, clause: int) -> Mention | None:
+    return next((c for c in ms if c is not m and c.seg == m.seg and c.clause == clause
+                 and c.role in ("nsubj", "nsubj:pass") and c.pron_type != "possessive"), None)
+
+
+def _clause_object(ms: Sequence[Mention], m: Mention, clause: int) -> Mention | None:
+    return next((c for c in ms if c is not m and c.seg == m.seg and c.clause == clause and c.animate
+                 and c.role in ("obj", "iobj", "dobj", "dative") and c.pron_type != "possessive"), None)
+
+
 def _appos_through_modifier(parsed: ParsedText, head: int, seg: int, by_seg_head: dict) -> Mention | None:
     """An appositive attached to the last noun of a modifier ("the doctor on call, Ana Ruiz"): the person noun
     that the modifier belongs to."""
@@ -321,6 +330,33 @@ def _relative_antecedent(parsed: ParsedText, clause: int) -> int:
     return -1
 
 
+# Relations inside a noun phrase: a word attached by one of them is part of its head's phrase.
+NOMINAL_RELS = frozenset({"det", "det:poss", "nmod:poss", "poss", "nmod", "appos", "amod", "flat", "flat:name",
+                          "compound", "nmod:appos", "case", "fixed"})
+
+
+def _noun_phrases_around(parsed: ParsedText, i: int) -> set[int]:
+    """Heads of the noun phrases that contain token i: up from i as long as the relation is nominal.
+
+    An apposition counts only where punctuation sets it off ("Alicia, su mujer"): without it, the parser's
+    appos is as often a misread second object ("cost the director her job").
+    """
+    out: set[int] = set()
+    t = parsed.tokens[i]
+    while not t.is_root and t.deprel in NOMINAL_RELS and t.head not in out:
+        if t.deprel in ("appos", "nmod:appos") and not _set_off(parsed, t.i):
+            break
+        out.add(t.head)
+        t = parsed.tokens[t.head]
+    return out
+
+
+def _set_off(parsed: ParsedText, i: int) -> bool:
+    """Whether the phrase headed by token i is preceded by a comma, dash, colon or bracket."""
+    first = min(parsed.subtree(i))
+    return first > 0 and parsed.tokens[first - 1].text in (",", "(", "-", "–", "—", ":")
+
+
 def _subtree(parsed: ParsedText, i: int) -> set[int]:
     return set(parsed.subtree(i))
 
@@ -344,6 +380,7 @@ def _pick_antecedent(m, ms, cl, parses, use_gender):
     (a choice made only because nothing else was there counts itself as its alternative: it is uncertain)."""
     scored: dict[str, tuple[float, Mention]] = {}
     fallback = None
+    containers = _noun_phrases_around(parses[m.seg], m.head) if m.pron_type == "possessive" else set()
     for c in ms:
         # A possessive may point forward to the subject of its own clause ("Por su parte, la ingeniera...").
         # So may one inside a non-finite clause, whose understood subject is that of the clause it depends on
@@ -358,8 +395,9 @@ def _pick_antecedent(m, ms, cl, parses, use_gender):
         )
         if (_order(c) >= _order(m) and not cataphoric) or m.seg - c.seg > PRONOUN_WINDOW:
             continue
-        # A possessive is not the person it is the determiner of ("su hijo", "his son": the i-within-i condition).
-        if m.pron_type == "possessive" and c.seg == m.seg and parses[m.seg].tokens[m.head].head == c.head:
+        # A possessive is not a person whose noun phrase contains it: "su hijo", "his son", "Alicia, su mujer",
+        # "el padre de su amiga" (the i-within-i condition).
+        if containers and any(x.seg == m.seg and x.head in containers for x in cl.members(c.id)):
             continue
         if c.kind == "pronoun" and c.pron_type == "possessive" and c.seg == m.seg:
             # Two possessives of one sentence may belong to two people ("Ana y sus socios ... sus planes"):

@@ -147,6 +147,12 @@ def extract_mentions(
                 )
             )
             words = words[1:]
+        # So is a gendered person noun there ("King Aldric", "Sister Maren"): the recogniser often takes the
+        # title into the name. Only nouns whose form alone shows the gender count (not a generic masculine).
+        while len(words) > 1 and words[0].text[:1].isupper() and _title_noun_gender(words[0].text, rules):
+            title_marks.append(_mark(side, seg, seg_id, words[0], _title_noun_gender(words[0].text, rules),
+                                     "lexical", W_LEXICAL, "gendered noun"))
+            words = words[1:]
         if not words:
             continue
         ids = [w.i for w in words]
@@ -559,6 +565,19 @@ def _governing_clause(parsed: ParsedText, i: int) -> int:
     return t.i
 
 
+def _title_noun_gender(form: str, rules: LanguageRules) -> str | None:
+    """The gender a person noun shows by its form alone (a feminine form, or a masculine one in a language
+    without gendered articles, as "king"); None for other words, common and epicene nouns and masculine forms
+    that are also generic."""
+    entry = rules.noun_counterpart(form)
+    if entry is None:
+        return None
+    gender = entry[0]
+    if gender == "fem" or (gender == "masc" and not rules.articles and form.lower() not in rules.generic_masculine):
+        return gender
+    return None
+
+
 def _honorifics_before(parsed, head, ids, rules, side, seg, seg_id) -> list[EvidenceItem]:
     marks = []
     for c in parsed.children(head):
@@ -568,8 +587,11 @@ def _honorifics_before(parsed, head, ids, rules, side, seg, seg_id) -> list[Evid
         if g and c.deprel in ("compound", "flat", "flat:name", "appos", "nmod", "det", "amod") and c.i < head:
             marks.append(_mark(side, seg, seg_id, c, g, "title", W_TITLE, "honorific"))
     # "el señor García": the honorific may be the head with the name under it.
+    # Not across a coordination ("el señor Ruiz y la jefa Ana Gil": señor is not Ana Gil's title).
     h = parsed.head_of(head)
-    if h is not None and h.i < head and rules.honorific(h.text):
+    if h is not None and h.i < head and rules.honorific(h.text) and parsed.tokens[head].deprel in (
+        "flat", "flat:name", "appos", "compound", "nmod", "nmod:appos"
+    ):
         marks.append(_mark(side, seg, seg_id, h, rules.honorific(h.text), "title", W_TITLE, "honorific"))
     return marks
 

@@ -1,0 +1,122 @@
+"""Possessives in coreference and finite verbs without VerbForm, on real spaCy parses and hand-built UD tokens.
+
+Sentences, people and places are invented. The grammar facts: a possessive determiner cannot corefer with the
+noun phrase it belongs to (the i-within-i condition; handbook grammar, from memory); the understood subject of
+a non-finite adjunct clause is the subject of the clause it depends on (subject control; from memory); the UD
+guidelines give the Mood feature to finite verb forms (universaldependencies.org, feature Mood).
+"""
+
+from __future__ import annotations
+
+import pytest
+
+from gendertrace import Scorer
+from gendertrace.mentions.extract import extract_mentions
+from gendertrace.model import Document, ParsedText, Segment, Token
+from gendertrace.rules import load_rules
+
+pytestmark = pytest.mark.slow
+
+
+@pytest.fixture(scope="module")
+def es_en() -> Scorer:
+    return Scorer("es", "en")
+
+
+def _score(scorer: Scorer, pairs):
+    doc = Document("d", tuple(Segment(str(k), s, t) for k, (s, t) in enumerate(pairs, 1)))
+    return next(iter(scorer.score([doc])))
+
+
+def _chain_texts(result, side: str, text: str) -> list[str]:
+    chain = next(c for c in result.chains if c.side == side and any(m.text == text for m in c.mentions))
+    return [m.text for m in chain.mentions]
+
+
+def test_a_possessive_does_not_corefer_with_the_noun_it_determines(es_en):
+    result = _score(es_en, [(
+        "Todo cambió cuando la arquitecta Nerea Olabide supo que su hijo tenía fiebre.",
+        "Everything changed when the architect Nerea Olabide learned that his son had a fever.",
+    )])
+    assert "hijo" not in _chain_texts(result, "source", "su")
+    assert "Nerea Olabide" in _chain_texts(result, "source", "su")
+    flagged = [(f.kind, f.text, f.expected) for f in result.findings]
+    assert ("contradiction", "his", "fem") in flagged
+
+
+def test_a_possessive_in_a_fronted_gerund_clause_takes_the_main_subject(es_en):
+    result = _score(es_en, [(
+        "Alejándose de su discurso anterior, la alcaldesa anunció un plan nuevo.",
+        "Moving away from his earlier speech, the mayor announced a new plan.",
+    )])
+    assert "alcaldesa" in _chain_texts(result, "source", "su")
+    assert [(f.kind, f.text, f.expected) for f in result.findings] == [("contradiction", "his", "fem")]
+
+
+def test_two_possessives_with_no_other_antecedent_are_one_person(es_en):
+    result = _score(es_en, [("Su sueño es cerrar aquí su carrera.", "Her dream is to end his career here.")])
+    assert _chain_texts(result, "source", "Su") == ["Su", "su"]
+    assert {f.kind for f in result.findings} <= {"inconsistency"}
+    assert any(f.text in ("Her", "his") for f in result.findings)
+
+
+def _tok(i, text, upos, feats, head, deprel, start) -> Token:
+    return Token(i=i, text=text, lemma=text.lower(), upos=upos, feats=feats, head=head, deprel=deprel,
+                 start=start, end=start + len(text))
+
+
+def test_mood_without_verbform_counts_as_finite_for_zero_subjects():
+    # Italian as some treebanks annotate it: the auxiliary carries Mood and Person but no VerbForm.
+    text = "Ha cantato."
+    toks = (
+        _tok(0, "Ha", "AUX", {"Mood": "Ind", "Number": "Sing", "Person": "3", "Tense": "Pres"}, 1, "aux", 0),
+        _tok(1, "cantato", "VERB", {"Tense": "Past"}, 1, "root", 3),
+        _tok(2, ".", "PUNCT", {}, 1, "punct", 10),
+    )
+    parsed = ParsedText(text=text, tokens=toks, lang="it")
+    zeros = [m for m in extract_mentions(parsed, 0, "1", "source", load_rules("it")) if m.kind == "zero"]
+    assert [(m.text, m.person) for m in zeros] == [("Ha", "3")]
+    assert toks[0].finite and not toks[1].finite
+    assert not _tok(0, "cantare", "VERB", {"VerbForm": "Inf"}, 0, "root", 0).finite
+
+
+def test_a_possessive_inside_an_apposition_is_not_the_person_it_describes(es_en):
+    result = _score(es_en, [(
+        "Llegó tarde a la cena, contó Irati, su hermana.",
+        "He arrived late for dinner, said Irati, his sister.",
+    )])
+    possessive = next(m for c in result.chains if c.side == "source" for m in c.mentions if m.text == "su")
+    chain = next(c for c in result.chains if c.side == "source" and possessive in c.mentions)
+    assert not {"Irati", "hermana"} & {m.text for m in chain.mentions}
+    assert not [f for f in result.findings if f.text == "his" and f.kind == "contradiction"]
+
+
+def test_a_role_in_an_object_controlled_infinitive_belongs_to_the_object(es_en):
+    # Object control (handbook grammar, from memory): in "le permite seguir como X" the one who goes on as X
+    # is the object "le". The dative clitic pairs with the English object pronoun.
+    result = _score(es_en, [(
+        "La junta le permite seguir como directora del club.",
+        "The board allows him to remain director of the club.",
+    )])
+    assert "directora" in _chain_texts(result, "source", "le")
+    assert [(f.kind, f.text, f.expected) for f in result.findings if f.kind != "assumption"] == [
+        ("contradiction", "him", "fem")
+    ]
+
+
+def test_dative_and_accusative_pronouns_pair_for_alignment():
+    from gendertrace.pipeline import pronoun_pairs
+
+    pairs = pronoun_pairs(load_rules("es"), load_rules("en"))
+    assert ("le", "him") in pairs and ("le", "her") in pairs
+    assert ("lo", "him") in pairs
+    assert ("le", "he") not in pairs  # a clitic object is no subject
+
+
+def test_a_gendered_title_noun_inside_a_name_span_is_evidence():
+    # The English pipeline often takes "King" into the PERSON span; the title still shows the gender.
+    en_es = Scorer("en", "es")
+    result = _score(en_es, [("King Aldric replaced the old minister with Tomas Vey.",
+                             "La reina Aldric sustituyó al viejo ministro por Tomas Vey.")])
+    flagged = [(f.kind, f.text, f.expected) for f in result.findings if f.kind != "assumption"]
+    assert flagged == [("contradiction", "La reina", "masc")]
