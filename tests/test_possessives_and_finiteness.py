@@ -60,8 +60,8 @@ def test_two_possessives_with_no_other_antecedent_are_one_person(es_en):
     assert any(f.text in ("Her", "his") for f in result.findings)
 
 
-def _tok(i, text, upos, feats, head, deprel, start) -> Token:
-    return Token(i=i, text=text, lemma=text.lower(), upos=upos, feats=feats, head=head, deprel=deprel,
+def _tok(i, text, upos, feats, head, deprel, start, lemma=None) -> Token:
+    return Token(i=i, text=text, lemma=lemma or text.lower(), upos=upos, feats=feats, head=head, deprel=deprel,
                  start=start, end=start + len(text))
 
 
@@ -120,3 +120,37 @@ def test_a_gendered_title_noun_inside_a_name_span_is_evidence():
                              "La reina Aldric sustituyó al viejo ministro por Tomas Vey.")])
     flagged = [(f.kind, f.text, f.expected) for f in result.findings if f.kind != "assumption"]
     assert flagged == [("contradiction", "La reina", "masc")]
+
+
+def test_italian_participles_without_verbform_agree_with_a_zero_subject():
+    # "È stata gentile" as some Italian treebanks annotate it: no VerbForm on the auxiliary or the participle.
+    # Italian essere takes essere, so its participle agrees with the subject (handbook grammar, from memory).
+    text = "È stata gentile."
+    toks = (
+        _tok(0, "È", "AUX", {"Mood": "Ind", "Number": "Sing", "Person": "3", "Tense": "Pres"}, 2, "aux", 0,
+             "essere"),
+        _tok(1, "stata", "AUX", {"Gender": "Fem", "Number": "Sing", "Tense": "Past"}, 2, "cop", 2, "essere"),
+        _tok(2, "gentile", "ADJ", {"Number": "Sing"}, 2, "root", 8),
+        _tok(3, ".", "PUNCT", {}, 2, "punct", 15),
+    )
+    parsed = ParsedText(text=text, tokens=toks, lang="it")
+    zero = next(m for m in extract_mentions(parsed, 0, "1", "source", load_rules("it")) if m.kind == "zero")
+    assert [(mk.text, mk.gender) for mk in zero.marks] == [("stata", "fem")]
+    assert toks[1].participle and not toks[0].participle and not toks[2].participle
+
+
+def test_a_conjoined_verb_shares_its_subject_for_binding():
+    from gendertrace.coref.sieves import _subject_clauses
+
+    # "Mateo took a ladder and sat on him": sat (conj of took, no subject of its own) shares took's subject.
+    toks = (
+        _tok(0, "Mateo", "PROPN", {}, 1, "nsubj", 0),
+        _tok(1, "took", "VERB", {"VerbForm": "Fin"}, 1, "root", 6),
+        _tok(2, "it", "PRON", {}, 1, "obj", 11),
+        _tok(3, "and", "CCONJ", {}, 4, "cc", 14),
+        _tok(4, "sat", "VERB", {"VerbForm": "Fin"}, 1, "conj", 18),
+        _tok(5, "him", "PRON", {}, 4, "obl", 22),
+    )
+    parsed = ParsedText(text="Mateo took it and sat him", tokens=toks, lang="en")
+    assert _subject_clauses(parsed, 4) == {4, 1}
+    assert _subject_clauses(parsed, 1) == {1}

@@ -78,6 +78,16 @@ class Token:
         return form == "Fin" or (form is None and "Mood" in self.feats)
 
     @property
+    def participle(self) -> bool:
+        """A participle: VerbForm=Part, or a verb with no VerbForm and no Mood that carries Gender or a past
+        Tense (how some treebanks annotate Romance participles: "stata", "arrivato")."""
+        form = self.feats.get("VerbForm")
+        if form is not None:
+            return form == "Part"
+        return (self.upos in ("VERB", "AUX") and "Mood" not in self.feats
+                and ("Gender" in self.feats or self.feats.get("Tense") == "Past"))
+
+    @property
     def gender(self) -> str | None:
         """The token's UD Gender in the project's vocabulary, or None (also for Masc,Fem ambiguity)."""
         return UD_GENDER.get(self.feats.get("Gender", ""))

@@ -281,6 +281,22 @@ def _appos_through_modifier(parsed: ParsedText, head: int, seg: int, by_seg_head
     return None
 
 
+def _subject_clauses(parsed: ParsedText, clause: int) -> set[int]:
+    """The clause and, while it is a conjoined verb with no subject of its own, the clauses whose subject it
+    shares."""
+    out = {clause}
+    while clause >= 0:
+        t = parsed.tokens[clause]
+        if t.is_root or t.deprel != "conj" or any(k.deprel in ("nsubj", "nsubj:pass", "csubj")
+                                                  for k in parsed.children(clause)):
+            break
+        clause = t.head
+        if clause in out:
+            break
+        out.add(clause)
+    return out
+
+
 def _nonfinite_under(parsed: ParsedText, clause: int) -> int:
     """For a non-finite clause head (infinitive or participle complement), the clause it depends on; else -1."""
     if clause < 0:
@@ -410,15 +426,16 @@ def _pick_antecedent(m, ms, cl, parses, use_gender):
             continue  # clitics that may stand for things are anaphors only; a quoted "I" belongs to its speaker
         if cl.find(c.id) == cl.find(m.id):
             continue
-        # Binding: a non-reflexive personal pronoun does not corefer with the subject of its own clause, nor,
-        # as the subject of a non-finite clause ("allowed her to stay"), with the subject of the clause above.
+        # Binding: a non-reflexive personal pronoun does not corefer with the subject of its own clause (which a
+        # conjoined verb without a subject shares: "took a ladder and sat on him"), nor, as the subject of a
+        # non-finite clause ("allowed her to stay"), with the subject of the clause above.
         if (
             m.kind == "pronoun"
             and m.pron_type == "personal"
             and c.seg == m.seg
             and c.role in ("nsubj", "nsubj:pass")
         ):
-            if m.role not in ("nsubj", "nsubj:pass") and c.clause == m.clause:
+            if m.role not in ("nsubj", "nsubj:pass") and c.clause in _subject_clauses(parses[m.seg], m.clause):
                 continue
             if (
                 m.role in ("nsubj", "nsubj:pass")

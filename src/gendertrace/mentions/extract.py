@@ -674,18 +674,29 @@ def _predicate_marks(parsed, i, role, clause, rules, side, seg, seg_id, zero: bo
         # Partitive predicates agree with the subject: "es una de las pocas pilotos", "l'une des rares".
         g = rules.article_gender(pred.text)
         marks.append(_mark(side, seg, seg_id, pred, g, "agreement", W_PREDICATE, "predicative with copula"))
-    elif pred.upos in ("VERB", "ADJ") and pred.feat("VerbForm") == "Part":
+    elif pred.upos in ("VERB", "ADJ") and pred.participle:
         # An agreeing auxiliary makes the participle agree even under a compound tense ("ha sido elegida",
         # "a été élue"); with only the compound-tense auxiliary it is invariable ("ha operado", "a opéré").
         if has_pass or aux_lemmas & rules.agreeing_aux:
             add(pred, "participle with agreeing auxiliary")
+    # A copula that is itself a participle agrees where its auxiliary makes participles agree: Italian "è
+    # stata gentile" (essere takes essere: the participle agrees with the subject), not Spanish "ha sido".
+    if has_cop:
+        for k in kids:
+            if (
+                k.deprel == "cop"
+                and k.participle
+                and any(a.deprel in ("aux", "aux:pass") and a.lemma.lower() in rules.agreeing_aux
+                        for a in kids)
+            ):
+                add(k, "participle with agreeing auxiliary")
     # Coordinated predicates agree with the same subject ("cansada pero muy satisfecha").
     if marks and pred.upos in ("ADJ", "VERB"):
         for k in kids:
             if (
                 k.deprel == "conj"
                 and k.upos in ("ADJ", "VERB")
-                and (k.upos == "ADJ" or k.feat("VerbForm") == "Part")
+                and (k.upos == "ADJ" or k.participle)
             ):
                 add(k, "predicative with copula")
     # Secondary predicates ("quedó sorprendida", "se mostró convencida", "declaró emocionada"): an adjective
@@ -695,7 +706,7 @@ def _predicate_marks(parsed, i, role, clause, rules, side, seg, seg_id, zero: bo
             if (
                 k.deprel == "xcomp"
                 and k.upos in ("ADJ", "VERB")
-                and (k.upos == "ADJ" or k.feat("VerbForm") == "Part")
+                and (k.upos == "ADJ" or k.participle)
             ):
                 add(k, "secondary predicate")
     elif pred.upos == "VERB" and not any(
