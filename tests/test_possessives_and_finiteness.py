@@ -154,3 +154,23 @@ def test_a_conjoined_verb_shares_its_subject_for_binding():
     parsed = ParsedText(text="Mateo took it and sat him", tokens=toks, lang="en")
     assert _subject_clauses(parsed, 4) == {4, 1}
     assert _subject_clauses(parsed, 1) == {1}
+
+
+def test_a_name_inside_a_kinship_phrase_is_not_that_kin(es_en):
+    # "la mujer de Trueba, Ane Trueba": the possessor Trueba is not the wife, though the names share a word.
+    result = _score(es_en, [
+        ("Los críticos atacan a Trueba desde hace meses.", "Critics have attacked Trueba for months."),
+        ("La mujer de Trueba, Ane Trueba, apareció en julio.", "Trueba's wife, Ane Trueba, appeared in July."),
+    ])
+    chain = _chain_texts(result, "source", "Ane Trueba")
+    assert "mujer" in chain and "Trueba" not in chain
+
+
+def test_a_role_after_an_object_pronoun_is_the_object(es_en):
+    result = _score(es_en, [(
+        "La describió como una mujer valiente que cambió su barrio.",
+        "He described her as a brave woman who changed her neighbourhood.",
+    )])
+    chain = _chain_texts(result, "source", "mujer")
+    assert "La" in chain and "su" in chain  # the relative clause's possessive is the woman's too
+    assert not [f for f in result.findings if f.kind in ("contradiction", "inconsistency")]

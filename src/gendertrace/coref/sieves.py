@@ -94,8 +94,13 @@ def resolve_chains(
     certainty: dict[str, float] = {}
     antecedent: dict[str, str] = {}
 
+    apart = _contained_pairs(ms, parses)
+
     def try_union(a: Mention, b: Mention) -> bool:
-        if _compatible(cl.members(a.id), cl.members(b.id), use_gender):
+        ma, mb = cl.members(a.id), cl.members(b.id)
+        if apart and any(frozenset((x.id, y.id)) in apart for x in ma for y in mb):
+            return False
+        if _compatible(ma, mb, use_gender):
             cl.union(a.id, b.id)
             return True
         return False
@@ -164,7 +169,10 @@ def resolve_chains(
             if holder is not None and holder.kind in ("name", "noun") and holder is not m:
                 try_union(holder, m)  # "la incorporación de Julián Ferrás como secretario": no verb, a name
                 continue
-            holder = _clause_subject(ms, m, verb)
+            # With an object pronoun the role is predicated of the object ("la describió como una mujer
+            # valiente", "lo nombraron como director"); otherwise of the subject.
+            obj = _clause_object(ms, m, verb)
+            holder = obj if obj is not None and obj.kind == "pronoun" else _clause_subject(ms, m, verb)
             if holder is None:
                 # A non-finite clause has its subject understood: the object of the verb above where it has
                 # one ("le permite seguir como secretaria": object control), else that verb's subject.
@@ -261,7 +269,7 @@ def _clause_subject(ms: Sequence[Mention], m: Mention, clause: int) -> Mention |
 
 
 def _clause_object(ms: Sequence[Mention], m: Mention, clause: int) -> Mention | None:
-    return next((c for c in ms if c is not m and c.seg == m.seg and c.clause == clause and c.animate
+    return next((c for c in ms if c is not m and c.seg == m.seg and c.clause == clause
                  and c.role in ("obj", "iobj", "dobj", "dative") and c.pron_type != "possessive"), None)
 
 
@@ -279,6 +287,28 @@ def _appos_through_modifier(parsed: ParsedText, head: int, seg: int, by_seg_head
         if t.upos in ("VERB", "AUX"):
             return None
     return None
+
+
+def _contained_pairs(ms: Sequence[Mention], parses: Sequence[ParsedText]) -> set[frozenset[str]]:
+    """Pairs of mentions that cannot be one person because one stands inside the other's noun phrase as its
+    determiner or modifier: "su hijo", "la mujer de Tomás" (the i-within-i condition). An apposition or a
+    name part is the same person, not a modifier, so a mention attached by one starts no such pair."""
+    by_head: dict[tuple[int, int], list[Mention]] = {}
+    for m in ms:
+        if m.kind != "zero":
+            by_head.setdefault((m.seg, m.head), []).append(m)
+    out: set[frozenset[str]] = set()
+    for m in ms:
+        if m.kind == "zero":
+            continue
+        t = parses[m.seg].tokens[m.head]
+        if t.is_root or t.deprel in ("appos", "nmod:appos", "flat", "flat:name", "compound"):
+            continue
+        for h in _noun_phrases_around(parses[m.seg], m.head):
+            for c in by_head.get((m.seg, h), ()):
+                if c is not m:
+                    out.add(frozenset((m.id, c.id)))
+    return out
 
 
 def _subject_clauses(parsed: ParsedText, clause: int) -> set[int]:
@@ -340,7 +370,9 @@ def _relative_antecedent(parsed: ParsedText, clause: int) -> int:
     for _ in range(8):
         if t is None or t.is_root:
             return -1
-        if t.deprel in ("acl:relcl", "relcl"):
+        # Some pipelines label a relative clause plain acl: its relative pronoun shows what it is.
+        if t.deprel in ("acl:relcl", "relcl") or (t.deprel == "acl" and any(
+                "Rel" in (k.feat("PronType") or "") for k in parsed.children(t.i))):
             return t.head
         t = parsed.tokens[t.head]
     return -1
