@@ -13,7 +13,7 @@ from collections.abc import Sequence
 from dataclasses import dataclass, replace
 
 from gendertrace.declared.policy import Policy
-from gendertrace.evidence.resolve import STRENGTH_SCALE, resolve_gender
+from gendertrace.evidence.resolve import STRENGTH_SCALE, dedupe, resolve_gender
 from gendertrace.model import DocumentStats, Entity, EvidenceItem, Finding, Link, Mention
 
 PREDICATE_RULES = ("predicative with copula", "participle with agreeing auxiliary", "secondary predicate")
@@ -169,41 +169,21 @@ def detect_findings(
         judged = 0
         consistent_before = consistent
         for r in ordered:
-            if source_verdict and source_verdict.confidence >= max(min_confidence, SOURCE_DECISIVE):
-                verdict, kind, support = source_verdict, "contradiction", source_ev
-            else:
-                pool = {(o.seg, o.start, o.end): o for o in ordered}
-                if target_chain_of and certainty.get(r.mention.id, 1.0) >= 1.0:
-                    for o in chain_refs.get(target_chain_of[r.mention.id], []):
-                        pool.setdefault((o.seg, o.start, o.end), o)
-                others = [mk for key, o in pool.items() if key != (r.seg, r.start, r.end) for mk in o.marks]
-                if not others and not source_ev:
-                    continue
-                verdict = _pooled_verdict(source_ev, others)
-                leaning = source_verdict.gender if source_verdict else None
-                kind = "contradiction" if leaning == verdict.gender else "inconsistency"
-                support = [x for x in source_ev if x.gender == verdict.gender] + [
-                    mk for mk in others if mk.gender == verdict.gender
-                ]
-            conf = verdict.confidence * reach(r)
-            # Only for words tied to no source person: a linked word's own entity has spoken (even if silently).
-            if (
-                (conf < min_confidence or verdict.gender not in ("fem", "masc"))
-                and not e.source_mentions
-                and segment_evidence
-            ):
-                seg_ev = segment_evidence[r.seg]
-                seg_verdict = resolve_gender(seg_ev) if seg_ev else None
-                if (
-                    seg_verdict
-                    and seg_verdict.gender in ("fem", "masc")
-                    and seg_verdict.confidence
-                    >= 0.99 * (1.0 - math.exp(-sum(e.weight for e in seg_ev) / STRENGTH_SCALE))
-                ):
-                    verdict, kind, support = seg_verdict, "contradiction", list(seg_ev)
-                    conf = seg_verdict.confidence * SEGMENT_FACTOR
-            if verdict.gender not in ("fem", "masc") or conf < min_confidence:
+            judged_as = _entity_verdict(r, e, ordered, source_ev, source_verdict, reach, chain_refs,
+                                        target_chain_of, certainty, segment_evidence, min_confidence)
+            # The source word the target word translates has the last say where it shows a gender itself:
+            # "Er wurde befördert" / "She was promoted" is a contradiction whoever "Er" turns out to be, and
+            # "sie" / "she" is consistent even where coreference put "sie" with someone else.
+            direct = _direct_verdict(r, links, e)
+            if direct is not None and direct[0].confidence * DIRECT_REACH >= min_confidence:
+                own, own_support = direct
+                kept = (judged_as is not None and judged_as[1] == "contradiction"
+                        and judged_as[0].gender == own.gender)
+                if r.gender == own.gender or not kept:
+                    judged_as = (own, "contradiction", own_support, own.confidence * DIRECT_REACH)
+            if judged_as is None:
                 continue
+            verdict, kind, support, conf = judged_as
             checked += 1
             judged += 1
             if r.gender == verdict.gender:
@@ -230,6 +210,67 @@ def detect_findings(
         findings=counts,
     )
     return findings, stats, per_entity
+
+
+def _entity_verdict(r: Reference, e: Entity, ordered, source_ev, source_verdict, reach, chain_refs,
+                    target_chain_of, certainty, segment_evidence, min_confidence: float):
+    """(verdict, kind, support, confidence) from the entity's evidence, or None where it is silent."""
+    if source_verdict and source_verdict.confidence >= max(min_confidence, SOURCE_DECISIVE):
+        verdict, kind, support = source_verdict, "contradiction", source_ev
+    else:
+        pool = {(o.seg, o.start, o.end): o for o in ordered}
+        if target_chain_of and certainty.get(r.mention.id, 1.0) >= 1.0:
+            for o in chain_refs.get(target_chain_of[r.mention.id], []):
+                pool.setdefault((o.seg, o.start, o.end), o)
+        others = [mk for key, o in pool.items() if key != (r.seg, r.start, r.end) for mk in o.marks]
+        if not others and not source_ev:
+            return None
+        verdict = _pooled_verdict(source_ev, others)
+        leaning = source_verdict.gender if source_verdict else None
+        kind = "contradiction" if leaning == verdict.gender else "inconsistency"
+        support = [x for x in source_ev if x.gender == verdict.gender] + [
+            mk for mk in others if mk.gender == verdict.gender
+        ]
+    conf = verdict.confidence * reach(r)
+    # Only for words tied to no source person: a linked word's own entity has spoken (even if silently).
+    if (
+        (conf < min_confidence or verdict.gender not in ("fem", "masc"))
+        and not e.source_mentions
+        and segment_evidence
+    ):
+        seg_ev = segment_evidence[r.seg]
+        seg_verdict = resolve_gender(seg_ev) if seg_ev else None
+        if (
+            seg_verdict
+            and seg_verdict.gender in ("fem", "masc")
+            and seg_verdict.confidence
+            >= 0.99 * (1.0 - math.exp(-sum(e.weight for e in seg_ev) / STRENGTH_SCALE))
+        ):
+            verdict, kind, support = seg_verdict, "contradiction", list(seg_ev)
+            conf = seg_verdict.confidence * SEGMENT_FACTOR
+    if verdict.gender not in ("fem", "masc") or conf < min_confidence:
+        return None
+    return verdict, kind, support, conf
+
+
+
+# How surely a target word is about what the source word aligned to it (or the subject projected to it) is about.
+DIRECT_REACH = 0.85
+
+
+def _direct_verdict(r: Reference, links: dict[str, Link], e: Entity):
+    """The gender the linked source mention shows by its own marks, with those marks; None if it shows none."""
+    link = links.get(r.mention.id)
+    if link is None or link.method not in ("alignment", "projection") or not link.via:
+        return None
+    via = next((s for s in e.source_mentions if s.id == link.via), None)
+    if via is None or not via.marks:
+        return None
+    marks = list(dedupe(via.marks))
+    verdict = resolve_gender(marks)
+    if verdict.gender not in ("fem", "masc"):
+        return None
+    return verdict, [mk for mk in marks if mk.gender == verdict.gender]
 
 
 def _judge_declared(
