@@ -174,3 +174,33 @@ def test_a_role_after_an_object_pronoun_is_the_object(es_en):
     chain = _chain_texts(result, "source", "mujer")
     assert "La" in chain and "su" in chain  # the relative clause's possessive is the woman's too
     assert not [f for f in result.findings if f.kind in ("contradiction", "inconsistency")]
+
+
+def test_they_after_a_plural_noun_with_a_relative_clause_is_plural():
+    # "in pictures that looked as if they were old": they are the pictures, not the woman.
+    en_es = Scorer("en", "es")
+    result = _score(en_es, [(
+        "The face of one woman kept coming up in pictures that looked as if they were very old.",
+        "La cara de un hombre seguía apareciendo en fotos que parecían muy antiguas.",
+    )])
+    assert "they" not in [m.text for c in result.chains for m in c.mentions]
+    assert [(f.kind, f.text, f.expected) for f in result.findings] == [("contradiction", "un hombre", "fem")]
+
+
+def test_a_noun_in_apposition_to_a_name_follows_the_name_link():
+    # The word aligner pairs "hombre" with the possessor "Pello": the apposition to the name "Maite Urkiza",
+    # linked by name, decides which person "El hombre" is.
+    en_es = Scorer("en", "es")
+    src = "Pello's wife, Maite Urkiza, opened the new library in May."
+    tgt = "El hombre de Pello, Maite Urkiza, inauguró la nueva biblioteca en mayo."
+
+    def misaligned(sources, targets):
+        s_tok, t_tok = sources[0].tokens, targets[0].tokens
+        pello = next(t.i for t in s_tok if t.text == "Pello")
+        hombre = next(t.i for t in t_tok if t.text == "hombre")
+        return [frozenset({(pello, hombre)})]
+
+    en_es.statistical_aligner = misaligned
+    result = _score(en_es, [(src, tgt)])
+    flagged = [(f.kind, f.expected) for f in result.findings if "hombre" in f.text]
+    assert flagged == [("contradiction", "fem")]

@@ -88,10 +88,25 @@ def link_mentions(
             sure = src_res.certainty.get(link.via, 1.0)
             links[m.id] = replace(link, confidence=link.confidence * sure) if sure < 1.0 else link
 
-    # Inheritance through the target chain, for mentions no direct method reached.
     members: dict[str, list[Mention]] = {}
     for m in tgt_mentions:
         members.setdefault(tgt_res.chain_of[m.id], []).append(m)
+    # A name speaks for the nouns joined to it by structure (apposition, title, predicate), not by pronoun
+    # resolution: "el director de Ruiz, Ana Ruiz" goes where "Ana Ruiz" goes, whatever the aligner paired
+    # "director" with.
+    for group in members.values():
+        named = {links[o.id].source_chain for o in group if o.kind == "name" and o.id in links
+                 and links[o.id].method == "name"}
+        if len(named) != 1:
+            continue
+        (target_chain,) = named
+        for o in group:
+            link = links.get(o.id)
+            if (o.kind == "noun" and o.id not in tgt_res.antecedent and link is not None
+                    and link.method in ("alignment", "projection") and link.source_chain != target_chain):
+                links[o.id] = Link(o.id, target_chain, "chain", CONF_CHAIN)
+
+    # Inheritance through the target chain, for mentions no direct method reached.
     for m in tgt_mentions:
         if m.id in links:
             continue

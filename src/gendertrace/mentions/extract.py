@@ -422,6 +422,8 @@ def singular_they_ok(m: Mention, chain: list[Mention], parses: list[ParsedText])
             plural = t.upos in ("NOUN", "PROPN") and t.feat("Number") == "Plur"
             if plural and t.deprel in ("nsubj", "nsubj:pass", "nsubjpass"):
                 return False  # "the engineers arrived": plural they is as likely
+            if plural and any(c.deprel in ("acl:relcl", "relcl") for c in parses[k].children(t.i)):
+                return False  # "in photographs that looked as if they were old": they are the photographs
             if t.deprel == "conj" and t.upos in ("NOUN", "PROPN") and t.head == a.head and k == a.seg:
                 return False  # "Ana and Luis ... they"
     if m.side == "source" and any(
