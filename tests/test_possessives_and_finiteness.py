@@ -204,3 +204,20 @@ def test_a_noun_in_apposition_to_a_name_follows_the_name_link():
     result = _score(en_es, [(src, tgt)])
     flagged = [(f.kind, f.expected) for f in result.findings if "hombre" in f.text]
     assert flagged == [("contradiction", "fem")]
+
+
+def test_a_clitic_that_may_stand_for_a_thing_yields_to_a_doubled_strong_pronoun(es_en):
+    # Clitic doubling (handbook grammar, from memory): "la eligieron a ella": "her" translates "a ella".
+    result = _score(es_en, [("No sé por qué la eligieron a ella.", "I don't know why they chose him.")])
+    assert [(f.kind, f.text, f.expected) for f in result.findings] == [("contradiction", "him", "fem")]
+
+
+def test_an_agreeing_intensifier_makes_a_reflexive_a_person_mention_bound_to_the_subject(es_en):
+    result = _score(es_en, [(
+        "Se queda sola en el escenario y tiene que dar lo mejor de sí misma.",
+        "She stays alone on stage and has to give the best of herself.",
+    )])
+    chain = next(c for c in result.chains if c.side == "source" and any(m.text == "sí" for m in c.mentions))
+    assert [m.kind for m in chain.mentions].count("zero") >= 1
+    reflexive = next(m for m in chain.mentions if m.text == "sí")
+    assert [(mk.text, mk.gender, mk.rule) for mk in reflexive.marks] == [("misma", "fem", "agreeing intensifier")]

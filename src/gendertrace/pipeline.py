@@ -51,6 +51,9 @@ def pronoun_pairs(src: LanguageRules, tgt: LanguageRules) -> dict[tuple[str, str
                         continue
                     score = 1.0 + (0.5 if x.case and x.case == y.case else 0.0)
                     score += 1.0 if x.gender and x.gender == y.gender else 0.0
+                    # A pronoun that stands only for persons pairs before a clitic that may stand for a thing
+                    # ("la elegí a ella" / "I chose her": her is ella, the doubled clitic la is the same).
+                    score -= 0.75 if x.animate is False or y.animate is False else 0.0
                     best = score if best is None else max(best, score)
             if best is not None:
                 pairs[(a, b)] = best

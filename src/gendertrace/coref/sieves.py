@@ -311,6 +311,22 @@ def _contained_pairs(ms: Sequence[Mention], parses: Sequence[ParsedText]) -> set
     return out
 
 
+def _reflexive_scope(parsed: ParsedText, i: int) -> set[int]:
+    """Clauses whose subject a reflexive at token i may take: its verb, the clauses that verb shares its
+    subject with (coordination) and, for a non-finite verb, the clause that controls it."""
+    t = parsed.tokens[i]
+    for _ in range(6):  # up to the verb: "de sí misma" hangs on a noun or an adjective first
+        if t.upos in ("VERB", "AUX") or t.is_root:
+            break
+        t = parsed.tokens[t.head]
+    scope: set[int] = set()
+    verb = t.i
+    while verb >= 0 and verb not in scope:
+        scope |= _subject_clauses(parsed, verb)
+        verb = _nonfinite_under(parsed, verb)
+    return scope
+
+
 def _subject_clauses(parsed: ParsedText, clause: int) -> set[int]:
     """The clause and, while it is a conjoined verb with no subject of its own, the clauses whose subject it
     shares."""
@@ -429,6 +445,7 @@ def _pick_antecedent(m, ms, cl, parses, use_gender):
     scored: dict[str, tuple[float, Mention]] = {}
     fallback = None
     containers = _noun_phrases_around(parses[m.seg], m.head) if m.pron_type == "possessive" else set()
+    reflexive_scope = _reflexive_scope(parses[m.seg], m.head) if m.pron_type == "reflexive" else set()
     for c in ms:
         # A possessive may point forward to the subject of its own clause ("Por su parte, la ingeniera...").
         # So may one inside a non-finite clause, whose understood subject is that of the clause it depends on
@@ -487,8 +504,10 @@ def _pick_antecedent(m, ms, cl, parses, use_gender):
         # A speaker outside a quotation is not a person mentioned inside it, and vice versa.
         if c.seg == m.seg and c.sent == m.sent and c.quoted != m.quoted:
             continue
-        # A reflexive takes the subject of its own clause.
-        if m.pron_type == "reflexive" and not (c.seg == m.seg and c.clause == m.clause):
+        # A reflexive takes the subject of its own clause: the verb it depends on, or the subject that verb
+        # shares or is controlled by ("tiene que sacar lo mejor de sí misma").
+        if m.pron_type == "reflexive" and not (c.seg == m.seg and (c.clause == m.clause
+                                                                   or c.clause in reflexive_scope)):
             continue
         if not _compatible(cl.members(c.id), [m], use_gender):
             continue

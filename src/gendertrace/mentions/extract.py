@@ -254,7 +254,11 @@ def extract_mentions(
                 continue
             if form.person == "1" and t.i not in quoted:
                 continue  # outside quotations "I" is the writer, not a person of the document
-            if form.type == "reflexive" and form.gender is None:
+            # An agreeing intensifier shows the person's gender even on an ungendered pronoun: "de sí misma",
+            # "ella misma", "sé stessa".
+            intensifiers = [k for k in parsed.children(t.i) if k.deprel == "amod" and k.upos in ("ADJ", "DET")
+                            and k.gender in ("fem", "masc") and not _is_plural(k)]
+            if form.type == "reflexive" and form.gender is None and not intensifiers:
                 continue  # "se", "sí": mostly impersonal or passive markers, and never gendered
             if _is_expletive(parsed, t, rules):
                 continue
@@ -269,6 +273,8 @@ def extract_mentions(
                 marks.append(
                     _mark(side, seg, seg_id, t, form.gender, "pronoun", weight, f"{form.type} pronoun")
                 )
+            marks += [_mark(side, seg, seg_id, k, k.gender, "agreement", W_ADJECTIVE, "agreeing intensifier")
+                      for k in intensifiers]
             role, clause = _role_and_clause(parsed, t.i)
             if form.type == "possessive":
                 clause = _governing_clause(parsed, t.i)
