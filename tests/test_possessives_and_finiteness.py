@@ -221,3 +221,15 @@ def test_an_agreeing_intensifier_makes_a_reflexive_a_person_mention_bound_to_the
     assert [m.kind for m in chain.mentions].count("zero") >= 1
     reflexive = next(m for m in chain.mentions if m.text == "sí")
     assert [(mk.text, mk.gender, mk.rule) for mk in reflexive.marks] == [("misma", "fem", "agreeing intensifier")]
+
+
+def test_a_pronoun_pairs_by_place_and_never_with_an_impersonal_subject():
+    en_fr = Scorer("en", "fr")
+    # "il existe": impersonal, never the translation of "she".
+    result = _score(en_fr, [("\"There is still a strange factor to the idea,\" she says.",
+                             "Il explique qu'il existe toujours un effet étrange dans l'idée.")])
+    assert [(f.kind, f.text, f.expected) for f in result.findings] == [("contradiction", "Il", "fem")]
+    # "he says" is "affirme-t-elle" at the end, not the "il" about architecture in the middle.
+    result = _score(en_fr, [("\"Architecture does not help the dead, but it keeps memories alive,\" he says.",
+                             "L'architecture n'aide pas les morts, mais il garde les souvenirs, affirme-t-elle.")])
+    assert [(f.kind, f.expected) for f in result.findings if "elle" in f.text] == [("contradiction", "masc")]

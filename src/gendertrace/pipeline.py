@@ -135,7 +135,8 @@ class Scorer:
         for pd in parsed:
             aligns = []
             for j in range(len(pd.document.segments)):
-                strong, weak = anchor_alignment(pd.source[j], pd.target[j], self.lexicon, self.pairs)
+                strong, weak = anchor_alignment(pd.source[j], pd.target[j], self.lexicon, self.pairs,
+                                                self.src_rules, self.tgt_rules)
                 aligns.append(merge(stat[k + j] if stat else None, strong, weak))
             k += len(pd.document.segments)
             out.append(aligns)

@@ -24,6 +24,8 @@ MIN_STATISTICAL = 60
 # of its time (es-en news, 200 segment pairs; docs/benchmarks.md, scale section).
 PRIORS_REL_ITERATIONS = 0.3
 Alignment = frozenset[tuple[int, int]]  # (source token index, target token index)
+# How much a pronoun pair's score loses per unit of relative-position difference (0 to 1 across the segment).
+POSITION_WEIGHT = 3.5
 
 
 def _words(p: ParsedText) -> list[str]:
@@ -141,16 +143,27 @@ def anchor_alignment(
     tgt: ParsedText,
     lexicon: dict[str, frozenset[str]],
     pronoun_pairs: dict[tuple[str, str], float],
+    src_rules=None,
+    tgt_rules=None,
 ) -> tuple[Alignment, Alignment]:
     """Anchored links as (strong, weak).
 
     strong: identical words (names, numbers), person nouns via the lexicon, and pronouns paired one to one
-    (best-scoring pairs first: same type, case and gender score higher, nearer relative positions break ties);
+    (best-scoring pairs first: same type, case and gender score higher, and the difference of relative
+    positions counts against the score, POSITION_WEIGHT per unit);
     weak: each target verb to the source verb at the nearest relative position in the segment.
+    With the languages' rules given, impersonal pronouns ("il faut", "it seems") are never paired.
     """
+    from gendertrace.mentions.extract import is_expletive
     from gendertrace.rules.loader import pronoun_key
 
+    def impersonal(parsed: ParsedText, rules) -> set[int]:
+        if rules is None:
+            return set()
+        return {t.i for t in parsed.tokens if t.upos == "PRON" and is_expletive(parsed, t, rules)}
+
     links = set()
+    src_impersonal, tgt_impersonal = impersonal(src, src_rules), impersonal(tgt, tgt_rules)
     s_toks, t_toks = src.tokens, tgt.tokens
     ns, nt = max(len(s_toks), 1), max(len(t_toks), 1)
     pron_cands = []
@@ -164,14 +177,13 @@ def anchor_alignment(
                 links.add((s.i, t.i))
                 continue
             score = pronoun_pairs.get((pronoun_key(sl), pronoun_key(tl)))
-            if score is not None and _pronoun_like(s) and _pronoun_like(t):
-                pron_cands.append((-score, abs(s.i / ns - t.i / nt), s.i, t.i))
-    used_s, used_t = set(), set()
-    for _, _, i, j in sorted(pron_cands):
-        if i not in used_s and j not in used_t:
-            links.add((i, j))
-            used_s.add(i)
-            used_t.add(j)
+            if (score is not None and _pronoun_like(s) and _pronoun_like(t) and s.i not in src_impersonal
+                    and t.i not in tgt_impersonal):
+                # Position counts against the score: a same-gender pronoun across the sentence must not win
+                # over the pronoun in the same place ("..., he says" / "..., affirme-t-elle").
+                dist = abs(s.i / ns - t.i / nt)
+                pron_cands.append((-(score - POSITION_WEIGHT * dist), dist, s.i, t.i))
+    links |= _best_pairing(pron_cands)
     # Verbs by relative position: a weak fallback used only where no other link covers the verb.
     weak = set()
     s_verbs = [s for s in s_toks if s.upos in ("VERB", "AUX")]
@@ -184,6 +196,25 @@ def anchor_alignment(
             if abs(best.i / ns - t.i / nt) < 0.2:
                 weak.add((best.i, t.i))
     return frozenset(links), frozenset(weak)
+
+
+def _best_pairing(cands: list[tuple[float, float, int, int]]) -> set[tuple[int, int]]:
+    """One-to-one pronoun pairs with the best total score (an assignment problem, solved exactly): a greedy
+    choice would give "he" the "il" about a thing and leave "it" and "-elle" unpaired."""
+    if not cands:
+        return set()
+    from scipy.optimize import linear_sum_assignment
+
+    src_ids = sorted({i for _, _, i, _ in cands})
+    tgt_ids = sorted({j for _, _, _, j in cands})
+    row = {i: k for k, i in enumerate(src_ids)}
+    col = {j: k for k, j in enumerate(tgt_ids)}
+    weights = [[0.0] * len(tgt_ids) for _ in src_ids]
+    offset = POSITION_WEIGHT + 4.0  # every candidate pair weighs more than no pair
+    for neg_score, _, i, j in cands:
+        weights[row[i]][col[j]] = offset - neg_score
+    rows, cols = linear_sum_assignment(weights, maximize=True)
+    return {(src_ids[r], tgt_ids[c]) for r, c in zip(rows, cols, strict=True) if weights[r][c] > 0}
 
 
 def _pronoun_like(t) -> bool:

@@ -260,7 +260,7 @@ def extract_mentions(
                             and k.gender in ("fem", "masc") and not _is_plural(k)]
             if form.type == "reflexive" and form.gender is None and not intensifiers:
                 continue  # "se", "sí": mostly impersonal or passive markers, and never gendered
-            if _is_expletive(parsed, t, rules):
+            if is_expletive(parsed, t, rules):
                 continue
             if not form.animate and form.case in ("acc", "dat") and not _verb_clitic(parsed, t):
                 continue  # "lo mismo", "lo que": the neuter article, not an object pronoun
@@ -458,7 +458,7 @@ def _quoted_tokens(parsed: ParsedText) -> set[int]:
     return out
 
 
-def _is_expletive(parsed: ParsedText, t: Token, rules: LanguageRules) -> bool:
+def is_expletive(parsed: ParsedText, t: Token, rules: LanguageRules) -> bool:
     """An impersonal subject ("il faut", "il y a", "il est probable que"): refers to no one.
 
     Decided from the verb and its complements only: parsers also label personal subjects as expletives.
