@@ -26,6 +26,8 @@ PRIORS_REL_ITERATIONS = 0.3
 Alignment = frozenset[tuple[int, int]]  # (source token index, target token index)
 # How much a pronoun pair's score loses per unit of relative-position difference (0 to 1 across the segment).
 POSITION_WEIGHT = 3.5
+# Target pronouns of one segment up to which the pronoun pairing is solved exactly.
+MAX_EXACT = 12
 
 
 def _words(p: ParsedText) -> list[str]:
@@ -167,18 +169,20 @@ def anchor_alignment(
     s_toks, t_toks = src.tokens, tgt.tokens
     ns, nt = max(len(s_toks), 1), max(len(t_toks), 1)
     pron_cands = []
+    t_lower = [t.text.lower() for t in t_toks]
+    t_keys = [pronoun_key(x) if _pronoun_like(t) and t.i not in tgt_impersonal else None
+              for x, t in zip(t_lower, t_toks, strict=True)]
     for s in s_toks:
         sl = s.text.lower()
-        for t in t_toks:
-            tl = t.text.lower()
+        s_key = pronoun_key(sl) if _pronoun_like(s) and s.i not in src_impersonal else None
+        for t, tl, t_key in zip(t_toks, t_lower, t_keys, strict=True):
             if s.upos == "PUNCT" or t.upos == "PUNCT":
                 continue
             if (sl == tl and (s.upos in ("PROPN", "NUM") or len(sl) > 3)) or tl in lexicon.get(sl, ()):
                 links.add((s.i, t.i))
                 continue
-            score = pronoun_pairs.get((pronoun_key(sl), pronoun_key(tl)))
-            if (score is not None and _pronoun_like(s) and _pronoun_like(t) and s.i not in src_impersonal
-                    and t.i not in tgt_impersonal):
+            score = pronoun_pairs.get((s_key, t_key)) if s_key is not None and t_key is not None else None
+            if score is not None:
                 # Position counts against the score: a same-gender pronoun across the sentence must not win
                 # over the pronoun in the same place ("..., he says" / "..., affirme-t-elle").
                 dist = abs(s.i / ns - t.i / nt)
@@ -199,22 +203,39 @@ def anchor_alignment(
 
 
 def _best_pairing(cands: list[tuple[float, float, int, int]]) -> set[tuple[int, int]]:
-    """One-to-one pronoun pairs with the best total score (an assignment problem, solved exactly): a greedy
-    choice would give "he" the "il" about a thing and leave "it" and "-elle" unpaired."""
+    """One-to-one pronoun pairs with the best total score (an assignment problem): a greedy choice would give
+    "he" the "il" about a thing and leave "it" and "-elle" unpaired. Exact for up to MAX_EXACT pronouns on the
+    target side (far more than a sentence has), greedy beyond."""
     if not cands:
         return set()
-    from scipy.optimize import linear_sum_assignment
-
     src_ids = sorted({i for _, _, i, _ in cands})
     tgt_ids = sorted({j for _, _, _, j in cands})
-    row = {i: k for k, i in enumerate(src_ids)}
+    if len(tgt_ids) > MAX_EXACT:
+        out, used_s, used_t = set(), set(), set()
+        for _, _, i, j in sorted(cands):
+            if i not in used_s and j not in used_t:
+                out.add((i, j))
+                used_s.add(i)
+                used_t.add(j)
+        return out
     col = {j: k for k, j in enumerate(tgt_ids)}
-    weights = [[0.0] * len(tgt_ids) for _ in src_ids]
     offset = POSITION_WEIGHT + 4.0  # every candidate pair weighs more than no pair
+    options: dict[int, list[tuple[int, float]]] = {i: [] for i in src_ids}
     for neg_score, _, i, j in cands:
-        weights[row[i]][col[j]] = offset - neg_score
-    rows, cols = linear_sum_assignment(weights, maximize=True)
-    return {(src_ids[r], tgt_ids[c]) for r, c in zip(rows, cols, strict=True) if weights[r][c] > 0}
+        options[i].append((col[j], offset - neg_score))
+    # best[mask] = (total, pairs) over the source pronouns seen so far, with the target pronouns in mask used.
+    best: dict[int, tuple[float, tuple[tuple[int, int], ...]]] = {0: (0.0, ())}
+    for i in src_ids:
+        step = dict(best)  # this source pronoun may stay unpaired
+        for mask, (total, pairs) in best.items():
+            for k, w in options[i]:
+                if mask & (1 << k):
+                    continue
+                key, value = mask | (1 << k), (total + w, pairs + ((i, tgt_ids[k]),))
+                if key not in step or value[0] > step[key][0]:
+                    step[key] = value
+        best = step
+    return set(max(best.values(), key=lambda v: (v[0], [(-a, -b) for a, b in v[1]]))[1])
 
 
 def _pronoun_like(t) -> bool:
