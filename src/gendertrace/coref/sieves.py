@@ -446,6 +446,8 @@ def _pick_antecedent(m, ms, cl, parses, use_gender):
     fallback = None
     containers = _noun_phrases_around(parses[m.seg], m.head) if m.pron_type == "possessive" else set()
     reflexive_scope = _reflexive_scope(parses[m.seg], m.head) if m.pron_type == "reflexive" else set()
+    governing = _nonfinite_under(parses[m.seg], m.clause)  # the clause above a non-finite one, or -1
+    local_subject_clauses = _subject_clauses(parses[m.seg], m.clause)
     for c in ms:
         # A possessive may point forward to the subject of its own clause ("Por su parte, la ingeniera...").
         # So may one inside a non-finite clause, whose understood subject is that of the clause it depends on
@@ -453,7 +455,7 @@ def _pick_antecedent(m, ms, cl, parses, use_gender):
         cataphoric = (
             m.pron_type == "possessive"
             and c.seg == m.seg
-            and c.clause in (m.clause, _nonfinite_under(parses[m.seg], m.clause))
+            and c.clause in (m.clause, governing)
             and c.clause >= 0
             and c.role in ("nsubj", "nsubj:pass")
             and c.kind in ("name", "noun")
@@ -484,11 +486,11 @@ def _pick_antecedent(m, ms, cl, parses, use_gender):
             and c.seg == m.seg
             and c.role in ("nsubj", "nsubj:pass")
         ):
-            if m.role not in ("nsubj", "nsubj:pass") and c.clause in _subject_clauses(parses[m.seg], m.clause):
+            if m.role not in ("nsubj", "nsubj:pass") and c.clause in local_subject_clauses:
                 continue
             if (
                 m.role in ("nsubj", "nsubj:pass")
-                and _nonfinite_under(parses[m.seg], m.clause) == c.clause >= 0
+                and governing == c.clause >= 0
             ):
                 continue
         # Binding principle C: a subject (overt or zero) does not corefer with a name or noun inside its own

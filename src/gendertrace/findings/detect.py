@@ -253,7 +253,6 @@ def _entity_verdict(r: Reference, e: Entity, ordered, source_ev, source_verdict,
     return verdict, kind, support, conf
 
 
-
 # How surely a target word is about what the source word aligned to it (or the subject projected to it) is about.
 DIRECT_REACH = 0.85
 

@@ -149,9 +149,8 @@ def extract_mentions(
             words = words[1:]
         # So is a gendered person noun there ("King Aldric", "Sister Maren"): the recogniser often takes the
         # title into the name. Only nouns whose form alone shows the gender count (not a generic masculine).
-        while len(words) > 1 and words[0].text[:1].isupper() and _title_noun_gender(words[0].text, rules):
-            title_marks.append(_mark(side, seg, seg_id, words[0], _title_noun_gender(words[0].text, rules),
-                                     "lexical", W_LEXICAL, "gendered noun"))
+        while len(words) > 1 and words[0].text[:1].isupper() and (title := _title_noun_gender(words[0].text, rules)):
+            title_marks.append(_mark(side, seg, seg_id, words[0], title, "lexical", W_LEXICAL, "gendered noun"))
             words = words[1:]
         if not words:
             continue
