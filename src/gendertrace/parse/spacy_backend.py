@@ -36,6 +36,12 @@ def pipeline_name(lang: str, override: str | None = None) -> str:
 
 @lru_cache(maxsize=8)
 def load_pipeline(name: str):
+    """The pipeline `name`, loaded once per process and shared by every parser of this process."""
+    return load_fresh_pipeline(name)
+
+
+def load_fresh_pipeline(name: str):
+    """A new instance of the pipeline `name`, sharing nothing (vocabulary included) with other instances."""
     import spacy
 
     with warnings.catch_warnings():
