@@ -125,6 +125,13 @@ def resolve_chains(
             if pred is not None and pred.kind == "noun":
                 try_union(pred, m)
             continue
+        # "Wintour herself", "la ministra misma": an intensifying reflexive is the person it follows.
+        held = _intensifier_of(m, parses[m.seg])
+        if held >= 0:
+            other = by_seg_head.get((m.seg, held))
+            if other is not None and other.kind in ("name", "noun") and try_union(other, m):
+                antecedent[m.id] = other.id
+            continue
         if m.kind not in ("name", "noun"):
             continue
         tok = parses[m.seg].tokens[m.head]
@@ -304,11 +311,25 @@ def _contained_pairs(ms: Sequence[Mention], parses: Sequence[ParsedText]) -> set
         t = parses[m.seg].tokens[m.head]
         if t.is_root or t.deprel in ("appos", "nmod:appos", "flat", "flat:name", "compound"):
             continue
+        if _intensifier_of(m, parses[m.seg]) >= 0:
+            continue
         for h in _noun_phrases_around(parses[m.seg], m.head):
             for c in by_head.get((m.seg, h), ()):
                 if c is not m:
                     out.add(frozenset((m.id, c.id)))
     return out
+
+
+def _intensifier_of(m: Mention, parsed: ParsedText) -> int:
+    """The head token of the noun phrase a reflexive pronoun intensifies ("the minister herself", "Wintour
+    himself": attached to the noun with no preposition of its own), or -1 where it is no intensifier."""
+    if m.kind != "pronoun" or m.pron_type != "reflexive":
+        return -1
+    t = parsed.tokens[m.head]
+    if t.is_root or any(k.deprel == "case" for k in parsed.children(t.i)):
+        return -1
+    head = parsed.tokens[t.head]
+    return head.i if head.upos in ("NOUN", "PROPN") else -1
 
 
 def _reflexive_scope(parsed: ParsedText, i: int) -> set[int]:
@@ -421,6 +442,19 @@ def _set_off(parsed: ParsedText, i: int) -> bool:
     return first > 0 and parsed.tokens[first - 1].text in (",", "(", "-", "–", "—", ":")
 
 
+_ADJUNCTS = ("obl", "advcl", "advmod", "nmod", "dislocated", "discourse", "vocative", "parataxis", "prep", "npadvmod")
+
+
+def _in_fronted_adjunct(parsed: ParsedText, i: int, clause: int) -> bool:
+    """Whether token i stands inside an adjunct of `clause` (a prepositional phrase, an adverbial clause) that
+    comes before the clause's verb."""
+    k = i
+    while not parsed.tokens[k].is_root and parsed.tokens[k].head != clause:
+        k = parsed.tokens[k].head
+    t = parsed.tokens[k]
+    return t.head == clause and t.deprel.split(":")[0] in _ADJUNCTS and max(parsed.subtree(k)) < clause
+
+
 def _subtree(parsed: ParsedText, i: int) -> set[int]:
     return set(parsed.subtree(i))
 
@@ -494,13 +528,16 @@ def _pick_antecedent(m, ms, cl, parses, use_gender):
             ):
                 continue
         # Binding principle C: a subject (overt or zero) does not corefer with a name or noun inside its own
-        # clause ("∅ dijo [que el sospechoso...]", "he said John...").
+        # clause ("∅ dijo [que el sospechoso...]", "he said John..."), unless the name stands in an adjunct
+        # put before it, which the subject does not command ("Según la cuenta del director, ∅ ha hecho...",
+        # "According to the director's count, she has made...").
         if (
             m.role in ("nsubj", "nsubj:pass")
             and c.seg == m.seg
             and c.kind in ("name", "noun")
             and m.clause >= 0
             and c.head in _subtree(parses[m.seg], m.clause)
+            and not _in_fronted_adjunct(parses[m.seg], c.head, m.clause)
         ):
             continue
         # A speaker outside a quotation is not a person mentioned inside it, and vice versa.

@@ -168,6 +168,8 @@ def detect_findings(
 
         judged = 0
         consistent_before = consistent
+        raised: list[Finding] = []  # the entity's inconsistency findings
+        agreed: set[tuple[int, int, int]] = set()  # words judged consistent
         for r in ordered:
             judged_as = _entity_verdict(r, e, ordered, source_ev, source_verdict, reach, chain_refs,
                                         target_chain_of, certainty, segment_evidence, min_confidence)
@@ -188,9 +190,19 @@ def detect_findings(
             judged += 1
             if r.gender == verdict.gender:
                 consistent += 1
+                agreed.add((r.seg, r.start, r.end))
                 continue
             expected = verdict.gender if kind == "contradiction" else None
             findings.append(_finding(kind, r, expected, e, conf, support, seg_ids))
+            if kind == "inconsistency":
+                raised.append(findings[-1])
+        for r, finding in _tie_partners(ordered, raised, agreed):
+            # An even split has no majority: the words on the other side are as suspect as the flagged one,
+            # and the finding already takes them to be about this person.
+            checked += 1
+            judged += 1
+            findings.append(_finding("inconsistency", r, None, e, finding.confidence,
+                                     [mk for o in ordered if o.gender != r.gender for mk in o.marks], seg_ids))
         per_entity[e.id] = (judged, consistent - consistent_before)
         # A source that only uses neutral forms ("they") does not speak to a binary gender either.
         binary_source = any(x.gender in ("fem", "masc") for x in source_ev)
@@ -210,6 +222,27 @@ def detect_findings(
         findings=counts,
     )
     return findings, stats, per_entity
+
+
+def _tie_partners(ordered: Sequence[Reference], raised: Sequence[Finding],
+                  agreed: set[tuple[int, int, int]]) -> list[tuple[Reference, Finding]]:
+    """Where an entity's gendered target words split evenly between feminine and masculine and only some of
+    them were flagged as inconsistent (the others' attachment to the person was less sure), the unflagged
+    words of the split, each with the most confident finding raised against the other side."""
+    if not raised:
+        return []
+    fem = sum(1 for r in ordered if r.gender == "fem")
+    if fem * 2 != len(ordered):
+        return []
+    flagged = {(f.seg, f.start, f.end) for f in raised} | agreed
+    out = []
+    for r in ordered:
+        if (r.seg, r.start, r.end) in flagged:
+            continue
+        against = [f for f in raised if f.found != r.gender]
+        if against:
+            out.append((r, max(against, key=lambda f: f.confidence)))
+    return out
 
 
 def _entity_verdict(r: Reference, e: Entity, ordered, source_ev, source_verdict, reach, chain_refs,

@@ -188,6 +188,7 @@ def extract_mentions(
         for t in toks
         if rules.is_person_noun(t.text)
         and not _is_plural(t)
+        and (t.text.lower() not in rules.title_only or _as_title(t, toks))
         and (
             t.upos in ("NOUN", "PROPN")
             or (t.i > 0 and rules.article_gender(toks[t.i - 1].text) is not None)
@@ -570,6 +571,14 @@ def _governing_clause(parsed: ParsedText, i: int) -> int:
         if t.upos in ("VERB", "AUX") or any(k.deprel in ("nsubj", "nsubj:pass", "cop") for k in kids):
             return t.i
     return t.i
+
+
+def _as_title(t, toks) -> bool:
+    """Whether a noun stands as a title: before a name ("Count Orsolani"), or capitalised inside a sentence."""
+    nxt = toks[t.i + 1] if t.i + 1 < len(toks) else None
+    if nxt is not None and nxt.upos == "PROPN" and nxt.sent == t.sent:
+        return True
+    return t.text[:1].isupper() and t.i > 0 and toks[t.i - 1].sent == t.sent
 
 
 def _title_noun_gender(form: str, rules: LanguageRules) -> str | None:

@@ -68,6 +68,8 @@ class LanguageRules:
     invariable_aux: frozenset[str]
     endings: tuple[tuple[str, str | None], ...] = ()
     generic_masculine: frozenset[str] = frozenset()
+    # Person nouns that are also common words ("count"): persons only as a title, capitalised or before a name.
+    title_only: frozenset[str] = frozenset()
     role_markers: frozenset[str] = frozenset()
     expletive_pronouns: frozenset[str] = frozenset()
     expletive_verbs: frozenset[str] = frozenset()
@@ -276,6 +278,12 @@ def parse_rules(data: Any, path: Path) -> LanguageRules:
         f.lower()
         for f in _str_list({"generic_masculine": [], **nouns}, "generic_masculine", path, "person_nouns.")
     )
+    title_only = frozenset(
+        f.lower() for f in _str_list({"title_only": [], **nouns}, "title_only", path, "person_nouns.")
+    )
+    stray = sorted(title_only - set(noun_genders))
+    if stray:
+        raise _fail(path, "person_nouns.title_only", f"{stray[0]!r} is not listed as a person noun")
     for form in _str_list({"epicene": [], **nouns}, "epicene", path, "person_nouns."):
         noun_genders[form.lower()] = ("epicene", form.lower())
 
@@ -312,6 +320,7 @@ def parse_rules(data: Any, path: Path) -> LanguageRules:
         **lists,
         endings=tuple(endings),
         generic_masculine=generic,
+        title_only=title_only,
         role_markers=frozenset(
             w.lower() for w in _str_list({"role_markers": [], **data}, "role_markers", path, "")
         ),
