@@ -94,3 +94,27 @@ def test_count_is_a_person_only_as_a_title():
     assert not any(m.text == "count" for c in tally.chains for m in c.mentions)
     title = _score(scorer, [("Count Orsolani opened the archive.", "El conde Orsolani abrió el archivo.")])
     assert any(m.text == "Count" or "Count" in m.text for c in title.chains for m in c.mentions if c.side == "source")
+
+
+def test_a_reflexive_in_a_relative_clause_is_bound_by_the_noun_it_describes(es_en):
+    # "who" carries no PronType from the English tagger: the pronoun opening the clause is taken as relative.
+    result = _score(es_en, [("La ingeniera Nerea Olabide es una persona que solo piensa en sí misma.",
+                             "The engineer Nerea Olabide is a person who only thinks about himself.")])
+    assert _chain_texts(result, "target", "himself") == ["engineer", "Nerea Olabide", "person", "himself"]
+    assert [(f.kind, f.text, f.expected) for f in result.findings] == [("contradiction", "himself", "fem")]
+
+
+def test_person_is_an_epicene_noun_in_english():
+    rules = load_rules("en")
+    assert rules.noun_counterpart("person") == ("epicene", "person")
+    assert rules.noun_counterpart("victim") == ("epicene", "victim")
+
+
+def test_the_subject_and_the_object_of_one_verb_stay_apart_through_a_shared_antecedent(es_en):
+    # Principle B (from memory): "La describió" has two people. Both could take the earlier "she", but not
+    # both at once, so the object and the subject end in different chains on each side.
+    result = _score(es_en, [("Tenía noventa años.", "She was ninety."),
+                            ("La describió como una pintora generosa.", "He described her as a generous painter.")])
+    assert "La" not in _chain_texts(result, "source", "describió")
+    assert "her" not in _chain_texts(result, "target", "He")
+    assert "painter" in _chain_texts(result, "target", "her")

@@ -94,7 +94,7 @@ def resolve_chains(
     certainty: dict[str, float] = {}
     antecedent: dict[str, str] = {}
 
-    apart = _contained_pairs(ms, parses)
+    apart = _contained_pairs(ms, parses) | _disjoint_arguments(ms, parses)
 
     def try_union(a: Mention, b: Mention) -> bool:
         ma, mb = cl.members(a.id), cl.members(b.id)
@@ -320,6 +320,26 @@ def _contained_pairs(ms: Sequence[Mention], parses: Sequence[ParsedText]) -> set
     return out
 
 
+def _disjoint_arguments(ms: Sequence[Mention], parses: Sequence[ParsedText]) -> set[frozenset[str]]:
+    """Pairs that binding principle B keeps apart whatever else joins them: a personal pronoun that is not the
+    subject, and the subject (overt or understood) of its own clause or of a clause sharing that subject ("La
+    describió": whoever described is not the one described, even where both are "she" a sentence earlier)."""
+    subjects: dict[tuple[int, int], list[Mention]] = {}
+    for m in ms:
+        if m.role in ("nsubj", "nsubj:pass") and m.pron_type != "possessive" and m.clause >= 0:
+            subjects.setdefault((m.seg, m.clause), []).append(m)
+    out: set[frozenset[str]] = set()
+    for m in ms:
+        if (m.kind != "pronoun" or m.pron_type != "personal" or m.role in ("nsubj", "nsubj:pass")
+                or m.clause < 0):
+            continue
+        for clause in _subject_clauses(parses[m.seg], m.clause) | {m.clause}:
+            for c in subjects.get((m.seg, clause), ()):
+                if c is not m:
+                    out.add(frozenset((m.id, c.id)))
+    return out
+
+
 def _intensifier_of(m: Mention, parsed: ParsedText) -> int:
     """The head token of the noun phrase a reflexive pronoun intensifies ("the minister herself", "Wintour
     himself": attached to the noun with no preposition of its own), or -1 where it is no intensifier."""
@@ -401,6 +421,25 @@ def _role_marked_verb(parsed: ParsedText, head: int, markers: frozenset[str]) ->
     return -1
 
 
+def _relative_subject_head(parsed: ParsedText, clause: int) -> int:
+    """The noun a relative clause describes, when `clause` is that relative clause and its subject is the
+    relative pronoun ("the person who cares"); else -1."""
+    if clause < 0:
+        return -1
+    t = parsed.tokens[clause]
+    if t.is_root:
+        return -1
+    first = min(parsed.subtree(t.i))
+    # The relative pronoun: marked PronType=Rel, or (where a tagger leaves it unmarked, as for "who") a
+    # pronoun with no person that opens the clause.
+    relative = [k for k in parsed.children(t.i)
+                if k.deprel in ("nsubj", "nsubj:pass") and k.upos == "PRON"
+                and ("Rel" in (k.feat("PronType") or "") or (k.i == first and not k.feat("Person")))]
+    if not relative or t.deprel not in ("acl:relcl", "relcl", "acl"):
+        return -1
+    return t.head
+
+
 def _relative_antecedent(parsed: ParsedText, clause: int) -> int:
     """The noun a relative clause hangs on, when `clause` is (inside) one; else -1."""
     t = parsed.tokens[clause] if clause >= 0 else None
@@ -480,6 +519,9 @@ def _pick_antecedent(m, ms, cl, parses, use_gender):
     fallback = None
     containers = _noun_phrases_around(parses[m.seg], m.head) if m.pron_type == "possessive" else set()
     reflexive_scope = _reflexive_scope(parses[m.seg], m.head) if m.pron_type == "reflexive" else set()
+    # A reflexive in a relative clause whose subject is the relative pronoun is bound by the noun that clause
+    # describes ("a person who cares only about herself").
+    relative_heads = {h for h in (_relative_subject_head(parses[m.seg], k) for k in reflexive_scope) if h >= 0}
     governing = _nonfinite_under(parses[m.seg], m.clause)  # the clause above a non-finite one, or -1
     local_subject_clauses = _subject_clauses(parses[m.seg], m.clause)
     for c in ms:
@@ -546,7 +588,8 @@ def _pick_antecedent(m, ms, cl, parses, use_gender):
         # A reflexive takes the subject of its own clause: the verb it depends on, or the subject that verb
         # shares or is controlled by ("tiene que sacar lo mejor de sí misma").
         if m.pron_type == "reflexive" and not (c.seg == m.seg and (c.clause == m.clause
-                                                                   or c.clause in reflexive_scope)):
+                                                                   or c.clause in reflexive_scope
+                                                                   or c.head in relative_heads)):
             continue
         if not _compatible(cl.members(c.id), [m], use_gender):
             continue
@@ -554,6 +597,8 @@ def _pick_antecedent(m, ms, cl, parses, use_gender):
         if use_gender and not m.animate and m.gender not in _genders(cl.members(c.id)):
             continue
         s = _salience(c, m)
+        if c.seg == m.seg and c.head in relative_heads:
+            s += 1.0
         if (
             m.pron_type == "possessive"
             and c.seg == m.seg
