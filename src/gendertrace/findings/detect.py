@@ -168,7 +168,7 @@ def detect_findings(
 
         judged = 0
         consistent_before = consistent
-        raised: list[Finding] = []  # the entity's inconsistency findings
+        raised: list[Finding] = []  # the entity's findings
         agreed: set[tuple[int, int, int]] = set()  # words judged consistent
         for r in ordered:
             judged_as = _entity_verdict(r, e, ordered, source_ev, source_verdict, reach, chain_refs,
@@ -194,8 +194,7 @@ def detect_findings(
                 continue
             expected = verdict.gender if kind == "contradiction" else None
             findings.append(_finding(kind, r, expected, e, conf, support, seg_ids))
-            if kind == "inconsistency":
-                raised.append(findings[-1])
+            raised.append(findings[-1])
         for r, finding in _tie_partners(ordered, raised, agreed):
             # An even split has no majority: the words on the other side are as suspect as the flagged one,
             # and the finding already takes them to be about this person.
@@ -228,9 +227,10 @@ def _tie_partners(ordered: Sequence[Reference], raised: Sequence[Finding],
                   agreed: set[tuple[int, int, int]]) -> list[tuple[Reference, Finding]]:
     """Where an entity's gendered target words split evenly between feminine and masculine and only some of
     them were flagged as inconsistent (the others' attachment to the person was less sure), the unflagged
-    words of the split, each with the most confident finding raised against the other side."""
-    if not raised:
-        return []
+    words of the split, each with the most confident finding raised against the other side. Not where any
+    finding of the entity is a contradiction."""
+    if not raised or any(f.kind != "inconsistency" for f in raised):
+        return []  # where the source speaks, it decides: a split in the target is no tie
     fem = sum(1 for r in ordered if r.gender == "fem")
     if fem * 2 != len(ordered):
         return []
