@@ -156,6 +156,15 @@ def test_an_unknown_pronoun_key_is_rejected(tmp_path):
     assert _rejected(tmp_path, data).key == "pronouns[1].animacy"
 
 
+def test_a_stressed_gender_needs_an_ungendered_form(tmp_path):
+    data = copy.deepcopy(MINIMAL)
+    data["pronouns"][0]["stressed"] = "masc"
+    if data["pronouns"][0].get("gender") is None:
+        data["pronouns"][0]["gender"] = "fem"
+    err = _rejected(tmp_path, data)
+    assert err.key == "pronouns[0].stressed"
+
+
 @pytest.mark.parametrize("value", ["male", "f", "Fem"])
 def test_a_bad_pronoun_gender_is_rejected(tmp_path, value):
     data = copy.deepcopy(MINIMAL)

@@ -118,3 +118,27 @@ def test_the_subject_and_the_object_of_one_verb_stay_apart_through_a_shared_ante
     assert "La" not in _chain_texts(result, "source", "describió")
     assert "her" not in _chain_texts(result, "target", "He")
     assert "painter" in _chain_texts(result, "target", "her")
+
+
+def _french_pronouns(text: str) -> dict[str, str | None]:
+    from gendertrace.mentions.extract import extract_mentions
+    from gendertrace.parse.spacy_backend import SpacyParser
+
+    parsed = SpacyParser("fr").parse(text)
+    return {m.text: m.gender for m in extract_mentions(parsed, 0, "s0", "target", load_rules("fr"))
+            if m.kind == "pronoun"}
+
+
+def test_french_lui_is_masculine_only_where_it_stands_stressed():
+    # "lui" after a preposition is the stressed masculine form (feminine "elle"); before a verb it is the
+    # dative clitic of either gender (handbook grammar, from memory).
+    assert _french_pronouns("Selon lui, la réforme arrive trop tard.")["lui"] == "masc"
+    assert _french_pronouns("Rien ne change chez lui depuis l'hiver.")["lui"] == "masc"
+    assert _french_pronouns("Je lui ai parlé hier.")["lui"] is None
+    assert _french_pronouns("Elle a gagné en lui parlant franchement.")["lui"] is None
+    assert load_rules("fr").pronoun("lui")[0].stressed == "masc"
+
+
+def test_an_inverted_subject_clitic_is_a_pronoun_whatever_its_tag():
+    # The French pipeline tags the "-elle" of "dit-elle" as an adjective.
+    assert _french_pronouns("« Je reviendrai », dit-elle à la foule.")["-elle"] == "fem"

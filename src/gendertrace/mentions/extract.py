@@ -246,9 +246,14 @@ def extract_mentions(
         neutral_form = (
             any(f.gender == "neutral" for f in rules.pronoun(t.text)) and t.deprel in NEUTRAL_PRONOUN_RELS
         )
-        if (t.upos in ("PRON", "DET") or neutral_form) and rules.pronoun(t.text):
+        # An inverted subject clitic ("dit-elle") is a pronoun whatever the tagger took it for.
+        inverted = len(t.text) > 1 and t.text.startswith("-") and t.deprel.startswith("nsubj")
+        if (t.upos in ("PRON", "DET") or neutral_form or inverted) and rules.pronoun(t.text):
             # Taggers often miss neopronouns and "elle" as pronouns: their relation in the clause decides.
-            form = _pick_pronoun_form(t, rules) if t.upos in ("PRON", "DET") else _neutral_form(t, rules)
+            form = (_pick_pronoun_form(t, rules) if t.upos in ("PRON", "DET") or inverted
+                    else _neutral_form(t, rules))
+            if form is not None and form.stressed and _after_preposition(parsed, t):
+                form = replace(form, gender=form.stressed)
             singular_they = form is not None and form.number == "plur" and form.singular_neutral
             if form is None or (form.number == "plur" and not singular_they):
                 continue
@@ -504,6 +509,17 @@ def _noun_mention(prefix, side, seg, t: Token, role: str, clause: int, key: str,
         id=f"{prefix}{t.i}", side=side, seg=seg, head=t.i, tokens=(t.i,), kind="noun", text=t.text, start=t.start,
         end=t.end, number="sing", person="3", role=role, clause=clause, key=key, marks=tuple(marks), sent=t.sent,
     )
+
+
+def _after_preposition(parsed: ParsedText, t: Token) -> bool:
+    """Whether a pronoun is the object of a preposition ("chez lui"): a case dependent, or an adposition right
+    before it and no verb right after (a clitic stands before its verb: "en lui parlant")."""
+    toks = parsed.tokens
+    if t.i + 1 < len(toks) and toks[t.i + 1].upos in ("VERB", "AUX"):
+        return False
+    if any(k.deprel == "case" for k in parsed.children(t.i)):
+        return True
+    return t.i > 0 and toks[t.i - 1].upos == "ADP" and toks[t.i - 1].sent == t.sent
 
 
 def _pick_pronoun_form(t: Token, rules: LanguageRules):

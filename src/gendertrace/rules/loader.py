@@ -46,6 +46,8 @@ class PronounForm:
     animate: bool = True
     person: str = "3"
     singular_neutral: bool = False  # a plural form also used for one person (English singular they)
+    # The gender of an ungendered form where it stands stressed, after a preposition (French "pour lui").
+    stressed: str | None = None
 
 
 @dataclass(frozen=True)
@@ -185,6 +187,7 @@ def parse_rules(data: Any, path: Path) -> LanguageRules:
             "animate",
             "person",
             "singular_neutral",
+            "stressed",
         }
         if extra:
             raise _fail(path, f"{where}.{sorted(extra)[0]}", "unknown key")
@@ -217,9 +220,12 @@ def parse_rules(data: Any, path: Path) -> LanguageRules:
                 f"{where}.singular_neutral",
                 f"expected true or false on a plural form, found {singular_neutral!r}",
             )
+        stressed = item.get("stressed")
+        if stressed not in (None, "fem", "masc") or (stressed and gender is not None):
+            raise _fail(path, f"{where}.stressed", f"expected fem or masc on a form without gender, found {stressed!r}")
         pronouns.setdefault(form.lower(), []).append(
             PronounForm(
-                form.lower(), gender, number, ptype, item.get("case"), animate, person, singular_neutral
+                form.lower(), gender, number, ptype, item.get("case"), animate, person, singular_neutral, stressed
             )
         )
 
