@@ -333,7 +333,7 @@ def _disjoint_arguments(ms: Sequence[Mention], parses: Sequence[ParsedText]) -> 
         if (m.kind != "pronoun" or m.pron_type != "personal" or m.role in ("nsubj", "nsubj:pass")
                 or m.clause < 0):
             continue
-        for clause in _subject_clauses(parses[m.seg], m.clause) | {m.clause}:
+        for clause in _subject_clauses(parses[m.seg], m.clause):
             for c in subjects.get((m.seg, clause), ()):
                 if c is not m:
                     out.add(frozenset((m.id, c.id)))
