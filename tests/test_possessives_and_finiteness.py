@@ -12,8 +12,9 @@ import pytest
 
 from gendertrace import Scorer
 from gendertrace.mentions.extract import extract_mentions
-from gendertrace.model import Document, ParsedText, Segment, Token
+from gendertrace.model import ParsedText, Token
 from gendertrace.rules import load_rules
+from scoring_helpers import chain_texts, score_pairs
 
 pytestmark = pytest.mark.slow
 
@@ -23,39 +24,31 @@ def es_en() -> Scorer:
     return Scorer("es", "en")
 
 
-def _score(scorer: Scorer, pairs):
-    doc = Document("d", tuple(Segment(str(k), s, t) for k, (s, t) in enumerate(pairs, 1)))
-    return next(iter(scorer.score([doc])))
-
-
-def _chain_texts(result, side: str, text: str) -> list[str]:
-    chain = next(c for c in result.chains if c.side == side and any(m.text == text for m in c.mentions))
-    return [m.text for m in chain.mentions]
 
 
 def test_a_possessive_does_not_corefer_with_the_noun_it_determines(es_en):
-    result = _score(es_en, [(
+    result = score_pairs(es_en, [(
         "Todo cambió cuando la arquitecta Nerea Olabide supo que su hijo tenía fiebre.",
         "Everything changed when the architect Nerea Olabide learned that his son had a fever.",
     )])
-    assert "hijo" not in _chain_texts(result, "source", "su")
-    assert "Nerea Olabide" in _chain_texts(result, "source", "su")
+    assert "hijo" not in chain_texts(result, "source", "su")
+    assert "Nerea Olabide" in chain_texts(result, "source", "su")
     flagged = [(f.kind, f.text, f.expected) for f in result.findings]
     assert ("contradiction", "his", "fem") in flagged
 
 
 def test_a_possessive_in_a_fronted_gerund_clause_takes_the_main_subject(es_en):
-    result = _score(es_en, [(
+    result = score_pairs(es_en, [(
         "Alejándose de su discurso anterior, la alcaldesa anunció un plan nuevo.",
         "Moving away from his earlier speech, the mayor announced a new plan.",
     )])
-    assert "alcaldesa" in _chain_texts(result, "source", "su")
+    assert "alcaldesa" in chain_texts(result, "source", "su")
     assert [(f.kind, f.text, f.expected) for f in result.findings] == [("contradiction", "his", "fem")]
 
 
 def test_two_possessives_with_no_other_antecedent_are_one_person(es_en):
-    result = _score(es_en, [("Su sueño es cerrar aquí su carrera.", "Her dream is to end his career here.")])
-    assert _chain_texts(result, "source", "Su") == ["Su", "su"]
+    result = score_pairs(es_en, [("Su sueño es cerrar aquí su carrera.", "Her dream is to end his career here.")])
+    assert chain_texts(result, "source", "Su") == ["Su", "su"]
     assert {f.kind for f in result.findings} <= {"inconsistency"}
     assert any(f.text in ("Her", "his") for f in result.findings)
 
@@ -81,7 +74,7 @@ def test_mood_without_verbform_counts_as_finite_for_zero_subjects():
 
 
 def test_a_possessive_inside_an_apposition_is_not_the_person_it_describes(es_en):
-    result = _score(es_en, [(
+    result = score_pairs(es_en, [(
         "Llegó tarde a la cena, contó Irati, su hermana.",
         "He arrived late for dinner, said Irati, his sister.",
     )])
@@ -94,11 +87,11 @@ def test_a_possessive_inside_an_apposition_is_not_the_person_it_describes(es_en)
 def test_a_role_in_an_object_controlled_infinitive_belongs_to_the_object(es_en):
     # Object control (handbook grammar, from memory): in "le permite seguir como X" the one who goes on as X
     # is the object "le". The dative clitic pairs with the English object pronoun.
-    result = _score(es_en, [(
+    result = score_pairs(es_en, [(
         "La junta le permite seguir como directora del club.",
         "The board allows him to remain director of the club.",
     )])
-    assert "directora" in _chain_texts(result, "source", "le")
+    assert "directora" in chain_texts(result, "source", "le")
     assert [(f.kind, f.text, f.expected) for f in result.findings if f.kind != "assumption"] == [
         ("contradiction", "him", "fem")
     ]
@@ -116,7 +109,7 @@ def test_dative_and_accusative_pronouns_pair_for_alignment():
 def test_a_gendered_title_noun_inside_a_name_span_is_evidence():
     # The English pipeline often takes "King" into the PERSON span; the title still shows the gender.
     en_es = Scorer("en", "es")
-    result = _score(en_es, [("King Aldric replaced the old minister with Tomas Vey.",
+    result = score_pairs(en_es, [("King Aldric replaced the old minister with Tomas Vey.",
                              "La reina Aldric sustituyó al viejo ministro por Tomas Vey.")])
     flagged = [(f.kind, f.text, f.expected) for f in result.findings if f.kind != "assumption"]
     assert flagged == [("contradiction", "La reina", "masc")]
@@ -158,20 +151,20 @@ def test_a_conjoined_verb_shares_its_subject_for_binding():
 
 def test_a_name_inside_a_kinship_phrase_is_not_that_kin(es_en):
     # "la mujer de Trueba, Ane Trueba": the possessor Trueba is not the wife, though the names share a word.
-    result = _score(es_en, [
+    result = score_pairs(es_en, [
         ("Los críticos atacan a Trueba desde hace meses.", "Critics have attacked Trueba for months."),
         ("La mujer de Trueba, Ane Trueba, apareció en julio.", "Trueba's wife, Ane Trueba, appeared in July."),
     ])
-    chain = _chain_texts(result, "source", "Ane Trueba")
+    chain = chain_texts(result, "source", "Ane Trueba")
     assert "mujer" in chain and "Trueba" not in chain
 
 
 def test_a_role_after_an_object_pronoun_is_the_object(es_en):
-    result = _score(es_en, [(
+    result = score_pairs(es_en, [(
         "La describió como una mujer valiente que cambió su barrio.",
         "He described her as a brave woman who changed her neighbourhood.",
     )])
-    chain = _chain_texts(result, "source", "mujer")
+    chain = chain_texts(result, "source", "mujer")
     assert "La" in chain and "su" in chain  # the relative clause's possessive is the woman's too
     assert not [f for f in result.findings if f.kind in ("contradiction", "inconsistency")]
 
@@ -179,7 +172,7 @@ def test_a_role_after_an_object_pronoun_is_the_object(es_en):
 def test_they_after_a_plural_noun_with_a_relative_clause_is_plural():
     # "in pictures that looked as if they were old": they are the pictures, not the woman.
     en_es = Scorer("en", "es")
-    result = _score(en_es, [(
+    result = score_pairs(en_es, [(
         "The face of one woman kept coming up in pictures that looked as if they were very old.",
         "La cara de un hombre seguía apareciendo en fotos que parecían muy antiguas.",
     )])
@@ -201,19 +194,19 @@ def test_a_noun_in_apposition_to_a_name_follows_the_name_link():
         return [frozenset({(pello, hombre)})]
 
     en_es.statistical_aligner = misaligned
-    result = _score(en_es, [(src, tgt)])
+    result = score_pairs(en_es, [(src, tgt)])
     flagged = [(f.kind, f.expected) for f in result.findings if "hombre" in f.text]
     assert flagged == [("contradiction", "fem")]
 
 
 def test_a_clitic_that_may_stand_for_a_thing_yields_to_a_doubled_strong_pronoun(es_en):
     # Clitic doubling (handbook grammar, from memory): "la eligieron a ella": "her" translates "a ella".
-    result = _score(es_en, [("No sé por qué la eligieron a ella.", "I don't know why they chose him.")])
+    result = score_pairs(es_en, [("No sé por qué la eligieron a ella.", "I don't know why they chose him.")])
     assert [(f.kind, f.text, f.expected) for f in result.findings] == [("contradiction", "him", "fem")]
 
 
 def test_an_agreeing_intensifier_makes_a_reflexive_a_person_mention_bound_to_the_subject(es_en):
-    result = _score(es_en, [(
+    result = score_pairs(es_en, [(
         "Se queda sola en el escenario y tiene que dar lo mejor de sí misma.",
         "She stays alone on stage and has to give the best of herself.",
     )])
@@ -226,10 +219,10 @@ def test_an_agreeing_intensifier_makes_a_reflexive_a_person_mention_bound_to_the
 def test_a_pronoun_pairs_by_place_and_never_with_an_impersonal_subject():
     en_fr = Scorer("en", "fr")
     # "il existe": impersonal, never the translation of "she".
-    result = _score(en_fr, [("\"There is still a strange factor to the idea,\" she says.",
+    result = score_pairs(en_fr, [("\"There is still a strange factor to the idea,\" she says.",
                              "Il explique qu'il existe toujours un effet étrange dans l'idée.")])
     assert [(f.kind, f.text, f.expected) for f in result.findings] == [("contradiction", "Il", "fem")]
     # "he says" is "affirme-t-elle" at the end, not the "il" about architecture in the middle.
-    result = _score(en_fr, [("\"Architecture does not help the dead, but it keeps memories alive,\" he says.",
+    result = score_pairs(en_fr, [("\"Architecture does not help the dead, but it keeps memories alive,\" he says.",
                              "L'architecture n'aide pas les morts, mais il garde les souvenirs, affirme-t-elle.")])
     assert [(f.kind, f.expected) for f in result.findings if "elle" in f.text] == [("contradiction", "masc")]

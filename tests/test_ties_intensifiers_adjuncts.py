@@ -12,8 +12,8 @@ from __future__ import annotations
 import pytest
 
 from gendertrace import Scorer
-from gendertrace.model import Document, Segment
 from gendertrace.rules import load_rules
+from scoring_helpers import chain_texts, score_pairs
 
 pytestmark = pytest.mark.slow
 
@@ -28,20 +28,12 @@ def en_es() -> Scorer:
     return Scorer("en", "es")
 
 
-def _score(scorer: Scorer, pairs):
-    doc = Document("d", tuple(Segment(str(k), s, t) for k, (s, t) in enumerate(pairs, 1)))
-    return next(iter(scorer.score([doc])))
-
-
-def _chain_texts(result, side: str, text: str) -> list[str]:
-    chain = next(c for c in result.chains if c.side == side and any(m.text == text for m in c.mentions))
-    return [m.text for m in chain.mentions]
 
 
 def test_an_even_split_flags_both_words(es_en):
     # The second possessive joins the first only as a fallback (less surely), so before this rule only the
     # first word was flagged, as if it alone were the odd one out.
-    result = _score(es_en, [("Su sueño es cerrar aquí su carrera.", "It is his dream to close her career here.")])
+    result = score_pairs(es_en, [("Su sueño es cerrar aquí su carrera.", "It is his dream to close her career here.")])
     flagged = sorted((f.kind, f.text) for f in result.findings)
     assert flagged == [("inconsistency", "her"), ("inconsistency", "his")]
     confidences = {f.confidence for f in result.findings}
@@ -49,7 +41,7 @@ def test_an_even_split_flags_both_words(es_en):
 
 
 def test_an_uneven_split_flags_only_the_minority(es_en):
-    result = _score(es_en, [
+    result = score_pairs(es_en, [
         ("Su sueño es cerrar aquí su carrera.", "It is his dream to close his career here."),
         ("Después volvió a su pueblo.", "Then she went back to his village."),
     ])
@@ -57,50 +49,51 @@ def test_an_uneven_split_flags_only_the_minority(es_en):
 
 
 def test_an_intensifying_reflexive_is_the_person_it_follows(es_en):
-    result = _score(es_en, [("La propia Carla Menéndez presentó el plan ayer.",
+    result = score_pairs(es_en, [("La propia Carla Menéndez presentó el plan ayer.",
                              "Carla Menéndez himself presented the plan yesterday.")])
-    assert _chain_texts(result, "target", "himself") == ["Carla Menéndez", "himself"]
+    assert chain_texts(result, "target", "himself") == ["Carla Menéndez", "himself"]
     assert [(f.kind, f.text, f.expected) for f in result.findings] == [("contradiction", "himself", "fem")]
 
 
 def test_a_reflexive_after_a_preposition_is_no_intensifier(en_es):
     # "a portrait of himself": the reflexive is bound by the subject, and is not in apposition to "portrait".
-    result = _score(en_es, [("Wendel Ostrak painted a portrait of himself.",
+    result = score_pairs(en_es, [("Wendel Ostrak painted a portrait of himself.",
                              "Wendel Ostrak pintó un retrato de sí mismo.")])
-    chain = _chain_texts(result, "source", "himself")
+    chain = chain_texts(result, "source", "himself")
     assert "Wendel Ostrak" in chain and "portrait" not in chain
 
 
 def test_a_name_in_a_fronted_adjunct_can_be_the_subject(es_en):
-    result = _score(es_en, [("Según el informe de la directora, ha cerrado tres fábricas.",
+    result = score_pairs(es_en, [("Según el informe de la directora, ha cerrado tres fábricas.",
                              "According to the director's report, he has closed three factories.")])
-    assert _chain_texts(result, "target", "he") == ["director", "he"]
-    assert "directora" in _chain_texts(result, "source", "ha")
+    assert chain_texts(result, "target", "he") == ["director", "he"]
+    assert "directora" in chain_texts(result, "source", "ha")
     assert [(f.kind, f.text, f.expected) for f in result.findings] == [("contradiction", "he", "fem")]
 
 
 def test_a_name_after_the_subject_stays_apart_from_it(es_en):
     # Principle C still holds where the subject comes first: "he said that the director..." is two people.
-    result = _score(es_en, [("Dijo que la directora cerrará tres fábricas.",
+    result = score_pairs(es_en, [("Dijo que la directora cerrará tres fábricas.",
                              "He said that the director will close three factories.")])
-    assert "director" not in _chain_texts(result, "target", "He")
+    assert "director" not in chain_texts(result, "target", "He")
 
 
 def test_count_is_a_person_only_as_a_title():
     rules = load_rules("en")
     assert "count" in rules.title_only and rules.noun_counterpart("count") == ("masc", "countess")
     scorer = Scorer("en", "es")
-    tally = _score(scorer, [("The count of votes ended late, she said.", "El recuento de votos terminó tarde, dijo.")])
+    tally = score_pairs(scorer, [("The count of votes ended late, she said.",
+                                  "El recuento de votos terminó tarde, dijo.")])
     assert not any(m.text == "count" for c in tally.chains for m in c.mentions)
-    title = _score(scorer, [("Count Orsolani opened the archive.", "El conde Orsolani abrió el archivo.")])
+    title = score_pairs(scorer, [("Count Orsolani opened the archive.", "El conde Orsolani abrió el archivo.")])
     assert any("Count" in m.text for c in title.chains for m in c.mentions if c.side == "source")
 
 
 def test_a_reflexive_in_a_relative_clause_is_bound_by_the_noun_it_describes(es_en):
     # "who" carries no PronType from the English tagger: the pronoun opening the clause is taken as relative.
-    result = _score(es_en, [("La ingeniera Nerea Olabide es una persona que solo piensa en sí misma.",
+    result = score_pairs(es_en, [("La ingeniera Nerea Olabide es una persona que solo piensa en sí misma.",
                              "The engineer Nerea Olabide is a person who only thinks about himself.")])
-    assert _chain_texts(result, "target", "himself") == ["engineer", "Nerea Olabide", "person", "himself"]
+    assert chain_texts(result, "target", "himself") == ["engineer", "Nerea Olabide", "person", "himself"]
     assert [(f.kind, f.text, f.expected) for f in result.findings] == [("contradiction", "himself", "fem")]
 
 
@@ -113,11 +106,11 @@ def test_person_is_an_epicene_noun_in_english():
 def test_the_subject_and_the_object_of_one_verb_stay_apart_through_a_shared_antecedent(es_en):
     # Principle B (from memory): "La describió" has two people. Both could take the earlier "she", but not
     # both at once, so the object and the subject end in different chains on each side.
-    result = _score(es_en, [("Tenía noventa años.", "She was ninety."),
+    result = score_pairs(es_en, [("Tenía noventa años.", "She was ninety."),
                             ("La describió como una pintora generosa.", "He described her as a generous painter.")])
-    assert "La" not in _chain_texts(result, "source", "describió")
-    assert "her" not in _chain_texts(result, "target", "He")
-    assert "painter" in _chain_texts(result, "target", "her")
+    assert "La" not in chain_texts(result, "source", "describió")
+    assert "her" not in chain_texts(result, "target", "He")
+    assert "painter" in chain_texts(result, "target", "her")
 
 
 def _french_pronouns(text: str) -> dict[str, str | None]:

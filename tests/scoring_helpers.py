@@ -1,0 +1,18 @@
+"""Helpers for tests that score small invented documents and look at their chains."""
+
+from __future__ import annotations
+
+from gendertrace import Scorer
+from gendertrace.model import Document, DocumentResult, Segment
+
+
+def score_pairs(scorer: Scorer, pairs) -> DocumentResult:
+    """Score one document made of (source, target) segment pairs."""
+    doc = Document("d", tuple(Segment(str(k), s, t) for k, (s, t) in enumerate(pairs, 1)))
+    return next(iter(scorer.score([doc])))
+
+
+def chain_texts(result: DocumentResult, side: str, text: str) -> list[str]:
+    """The mention texts of the chain on `side` that holds a mention reading `text`."""
+    chain = next(c for c in result.chains if c.side == side and any(m.text == text for m in c.mentions))
+    return [m.text for m in chain.mentions]
