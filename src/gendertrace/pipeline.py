@@ -17,6 +17,7 @@ from gendertrace.link.linker import link_mentions
 from gendertrace.mentions.extract import SINGULAR_THEY_RULE, extract_mentions, name_key, singular_they_ok
 from gendertrace.model import Document, DocumentResult, ParsedDocument, ParsedText
 from gendertrace.parse.base import Parser, get_parser
+from gendertrace.parse.spacy_backend import expect_languages
 from gendertrace.rules import LanguageRules, load_lexicon, load_rules, rules_digest
 
 
@@ -82,6 +83,9 @@ class Scorer:
         self.lexicon = load_lexicon(src_lang, tgt_lang)
         self.pairs = pronoun_pairs(self.src_rules, self.tgt_rules)
         s = self.settings
+        if s.parser == "spacy":
+            expect_languages(side for side, given in (((src_lang, s.src_model), src_parser),
+                                                      ((tgt_lang, s.tgt_model), tgt_parser)) if given is None)
         self.src_parser = src_parser or get_parser(src_lang, s.parser, s.src_model)
         self.tgt_parser = tgt_parser or get_parser(tgt_lang, s.parser, s.tgt_model)
         # Hook: the batch's statistical aligner; gendertrace.scale swaps in priors, threads or a frozen model.

@@ -138,3 +138,14 @@ def test_the_signature_records_the_batching_and_the_alignment(tmp_path):
     assert signature["alignment"] == "eflomal sampled per batch"
     assert signature["documents"] == demo_size()[0]
     assert "state" not in signature  # the run finished
+
+
+def test_worker_processes_leave_every_parse_in_the_cache(tmp_path):
+    # Workers exit without tearing their heap down (gendertrace.scale.executors): what they stored must stay.
+    plan = _plan(tmp_path, batch_docs=2)
+    first = score_file_report(V1, tmp_path / "one.jsonl", plan, jobs=2)
+    assert first.executor == "2 worker processes" and first.parsed > 0
+    again = score_file_report(V1, tmp_path / "two.jsonl", build_scorer(plan))
+    assert again.parsed == 0
+    assert again.cache_hits == again.sides == first.sides
+    assert (tmp_path / "two.jsonl").read_bytes() == (tmp_path / "one.jsonl").read_bytes()

@@ -263,15 +263,11 @@ def known_signature(backend: str, lang: str, model: str | None = None) -> str | 
     then loaded to ask it)."""
     if backend != "spacy":
         return None
-    import importlib.util
-
-    from gendertrace.parse.spacy_backend import pipeline_name
+    from gendertrace.parse.spacy_backend import pipeline_folder, pipeline_name
 
     try:
         name = pipeline_name(lang, model)
-        spec = importlib.util.find_spec(name)  # finds the package without running it
-        folders = list(spec.submodule_search_locations or []) if spec else []
-        meta = json.loads((Path(folders[0]) / "meta.json").read_text(encoding="utf-8"))
+        meta = json.loads((pipeline_folder(name) / "meta.json").read_text(encoding="utf-8"))  # type: ignore[operator]
     except Exception:  # noqa: BLE001 - a path, a missing package, no meta.json: "load it and ask"
         return None
     return f"spacy:{name}=={meta.get('version', '?')}"

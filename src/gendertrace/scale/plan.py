@@ -13,6 +13,7 @@ from gendertrace.declared.policy import Policy
 from gendertrace.declared.sheet import load_entity_sheet
 from gendertrace.parse.base import Parser, get_parser
 from gendertrace.parse.cache import CachedParser, ParseCache, known_signature
+from gendertrace.parse.spacy_backend import expect_languages
 from gendertrace.pipeline import Scorer, ScoreSettings
 from gendertrace.scale.priors import make_aligner
 
@@ -58,6 +59,10 @@ def build_scorer(plan: ScoringPlan) -> Scorer:
                              parser=plan.parser, src_model=plan.src_model, tgt_model=plan.tgt_model,
                              entity_sheet=load_entity_sheet(plan.entity_sheet) if plan.entity_sheet else None,
                              policy=plan.policy)
+    if plan.parser == "spacy":
+        expect_languages((lang, model) for lang, model, conllu in ((plan.src_lang, plan.src_model, plan.src_conllu),
+                                                                   (plan.tgt_lang, plan.tgt_model, plan.tgt_conllu))
+                         if not conllu)
     src = _side_parser(plan.src_lang, plan.parser, plan.src_model, plan.src_conllu, cache)
     tgt = _side_parser(plan.tgt_lang, plan.parser, plan.tgt_model, plan.tgt_conllu, cache)
     scorer = Scorer(plan.src_lang, plan.tgt_lang, settings, src, tgt)
