@@ -170,9 +170,23 @@ def detect_findings(
         consistent_before = consistent
         raised: list[Finding] = []  # the entity's findings
         agreed: set[tuple[int, int, int]] = set()  # words judged consistent
+        nominal = _nominal_view(e, ordered, source_ev)
+        anchors: list[tuple[Reference, float]] = []  # titles that pronouns alone would have flagged
         for r in ordered:
             judged_as = _entity_verdict(r, e, ordered, source_ev, source_verdict, reach, chain_refs,
                                         target_chain_of, certainty, segment_evidence, min_confidence)
+            if _title_only(r):
+                # A title travels with the name by the string itself: only what the document says of the
+                # person in names and nouns judges it, never pronouns or zero subjects that the resolver
+                # attached ("Mr. Comey" is no error because a later "she" was put in his chain).
+                n_ordered, n_source = nominal
+                n_verdict = resolve_gender(n_source) if n_source else None
+                by_name = _entity_verdict(r, e, n_ordered, n_source, n_verdict, reach, {}, None, certainty,
+                                          None, min_confidence)
+                if (judged_as is not None and judged_as[1] == "inconsistency" and judged_as[0].gender != r.gender
+                        and (by_name is None or by_name[0].gender == r.gender)):
+                    anchors.append((r, judged_as[3]))
+                judged_as = by_name
             # The source word the target word translates has the last say where it shows a gender itself:
             # "Er wurde befördert" / "She was promoted" is a contradiction whoever "Er" turns out to be, and
             # "sie" / "she" is consistent even where coreference put "sie" with someone else.
@@ -195,6 +209,15 @@ def detect_findings(
             expected = verdict.gender if kind == "contradiction" else None
             findings.append(_finding(kind, r, expected, e, conf, support, seg_ids))
             raised.append(findings[-1])
+        for r, conf in anchors:
+            # Where only the target disagrees with a title, the words attached by coreference are the odd ones.
+            flagged = {(f.seg, f.start, f.end) for f in raised} | agreed
+            for o in ordered:
+                if o.gender != r.gender and not _title_only(o) and (o.seg, o.start, o.end) not in flagged:
+                    checked += 1
+                    judged += 1
+                    findings.append(_finding("inconsistency", o, None, e, conf, r.marks, seg_ids))
+                    raised.append(findings[-1])
         for r, finding in _tie_partners(ordered, raised, agreed):
             # An even split has no majority: the words on the other side are as suspect as the flagged one,
             # and the finding already takes them to be about this person.
@@ -237,7 +260,7 @@ def _tie_partners(ordered: Sequence[Reference], raised: Sequence[Finding],
     flagged = {(f.seg, f.start, f.end) for f in raised} | agreed
     out = []
     for r in ordered:
-        if (r.seg, r.start, r.end) in flagged:
+        if (r.seg, r.start, r.end) in flagged or _title_only(r):  # a title is judged by names and nouns only
             continue
         against = [f for f in raised if f.found != r.gender]
         if against:
@@ -346,6 +369,24 @@ def _judge_declared(
             )
         )
     return n_checked, n_consistent
+
+
+NOMINAL_KINDS = ("name", "noun")
+
+
+def _title_only(r: Reference) -> bool:
+    """Whether the reference is an honorific and nothing else ("Mr.", "Mme")."""
+    return all(mk.kind == "title" for mk in r.marks)
+
+
+def _nominal_view(e: Entity, ordered: Sequence[Reference], source_ev: Sequence[EvidenceItem]):
+    """The entity's evidence from its nominal mentions only (names, titles, role and kinship nouns): the target
+    references of such mentions, and the source evidence items that such mentions carry (or declarations)."""
+    nominal_marks = {(mk.side, mk.seg, mk.start, mk.end) for m in e.source_mentions if m.kind in NOMINAL_KINDS
+                     for mk in m.marks}
+    source = [x for x in source_ev
+              if x.kind == "declared" or (x.side, x.seg, x.start, x.end) in nominal_marks]
+    return [r for r in ordered if r.mention.kind in NOMINAL_KINDS], source
 
 
 def _entity_kind(e: Entity) -> str:
