@@ -658,6 +658,17 @@ def _np_marks(parsed, head, rules, side, seg, seg_id, noun_form: bool) -> list[E
     return marks
 
 
+def _partitive_gender(parsed, pred: Token, rules) -> str | None:
+    """The gender of a partitive predicate's head: a gendered article form ("una", "l'une"), or an indefinite
+    pronoun the tagger genders with a plural group under it (Spanish "uno de mis amigos": not an article)."""
+    g = rules.article_gender(pred.text)
+    if g is None and pred.upos == "PRON" and pred.feat("PronType") == "Ind" and any(
+        c.deprel.startswith(("nmod", "obl")) and _is_plural(c) for c in parsed.children(pred.i)
+    ):
+        g = pred.gender
+    return g if g in ("fem", "masc") else None
+
+
 def _predicate_marks(parsed, i, role, clause, rules, side, seg, seg_id, zero: bool) -> list[EvidenceItem]:
     """Predicative adjectives, nouns and participles that agree with the subject of their clause."""
     if role not in SUBJECT_RELS and not zero:
@@ -700,11 +711,10 @@ def _predicate_marks(parsed, i, role, clause, rules, side, seg, seg_id, zero: bo
 
     if has_cop and pred.upos in ("ADJ", "NOUN", "VERB"):
         add(pred, "predicative with copula")
-    elif (
-        has_cop and pred.upos in ("PRON", "NUM", "DET") and rules.article_gender(pred.text) in ("fem", "masc")
-    ):
-        # Partitive predicates agree with the subject: "es una de las pocas pilotos", "l'une des rares".
-        g = rules.article_gender(pred.text)
+    elif has_cop and pred.upos in ("PRON", "NUM", "DET") and _partitive_gender(parsed, pred, rules):
+        # Partitive predicates agree with the subject: "es una de las pocas pilotos", "l'une des rares",
+        # "es uno de mis amigos".
+        g = _partitive_gender(parsed, pred, rules)
         marks.append(_mark(side, seg, seg_id, pred, g, "agreement", W_PREDICATE, "predicative with copula"))
     elif pred.upos in ("VERB", "ADJ") and pred.participle:
         # An agreeing auxiliary makes the participle agree even under a compound tense ("ha sido elegida",
