@@ -170,17 +170,16 @@ def detect_findings(
         consistent_before = consistent
         raised: list[Finding] = []  # the entity's findings
         agreed: set[tuple[int, int, int]] = set()  # words judged consistent
-        nominal = _nominal_view(e, ordered, source_ev)
+        nominal = _nominal_view(e, ordered, source_ev) if any(_title_only(r) for r in ordered) else None
         anchors: list[tuple[Reference, float]] = []  # titles that pronouns alone would have flagged
         for r in ordered:
             judged_as = _entity_verdict(r, e, ordered, source_ev, source_verdict, reach, chain_refs,
                                         target_chain_of, certainty, segment_evidence, min_confidence)
-            if _title_only(r):
+            if nominal is not None and _title_only(r):
                 # A title travels with the name by the string itself: only what the document says of the
                 # person in names and nouns judges it, never pronouns or zero subjects that the resolver
                 # attached ("Mr. Comey" is no error because a later "she" was put in his chain).
-                n_ordered, n_source = nominal
-                n_verdict = resolve_gender(n_source) if n_source else None
+                n_ordered, n_source, n_verdict = nominal
                 by_name = _entity_verdict(r, e, n_ordered, n_source, n_verdict, reach, {}, None, certainty,
                                           None, min_confidence)
                 if (judged_as is not None and judged_as[1] == "inconsistency" and judged_as[0].gender != r.gender
@@ -381,12 +380,12 @@ def _title_only(r: Reference) -> bool:
 
 def _nominal_view(e: Entity, ordered: Sequence[Reference], source_ev: Sequence[EvidenceItem]):
     """The entity's evidence from its nominal mentions only (names, titles, role and kinship nouns): the target
-    references of such mentions, and the source evidence items that such mentions carry (or declarations)."""
+    references of such mentions, the source evidence items such mentions carry, and the verdict on those."""
     nominal_marks = {(mk.side, mk.seg, mk.start, mk.end) for m in e.source_mentions if m.kind in NOMINAL_KINDS
                      for mk in m.marks}
-    source = [x for x in source_ev
-              if x.kind == "declared" or (x.side, x.seg, x.start, x.end) in nominal_marks]
-    return [r for r in ordered if r.mention.kind in NOMINAL_KINDS], source
+    source = [x for x in source_ev if (x.side, x.seg, x.start, x.end) in nominal_marks]
+    return ([r for r in ordered if r.mention.kind in NOMINAL_KINDS], source,
+            resolve_gender(source) if source else None)
 
 
 def _entity_kind(e: Entity) -> str:

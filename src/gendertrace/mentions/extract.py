@@ -711,10 +711,9 @@ def _predicate_marks(parsed, i, role, clause, rules, side, seg, seg_id, zero: bo
 
     if has_cop and pred.upos in ("ADJ", "NOUN", "VERB"):
         add(pred, "predicative with copula")
-    elif has_cop and pred.upos in ("PRON", "NUM", "DET") and _partitive_gender(parsed, pred, rules):
+    elif has_cop and pred.upos in ("PRON", "NUM", "DET") and (g := _partitive_gender(parsed, pred, rules)):
         # Partitive predicates agree with the subject: "es una de las pocas pilotos", "l'une des rares",
         # "es uno de mis amigos".
-        g = _partitive_gender(parsed, pred, rules)
         marks.append(_mark(side, seg, seg_id, pred, g, "agreement", W_PREDICATE, "predicative with copula"))
     elif pred.upos in ("VERB", "ADJ") and pred.participle:
         # An agreeing auxiliary makes the participle agree even under a compound tense ("ha sido elegida",
