@@ -32,6 +32,9 @@ class Resolution:
     chain_of: dict[str, str]
     certainty: dict[str, float] = field(default_factory=dict)
     antecedent: dict[str, str] = field(default_factory=dict)
+    # Gender-blind side: possessives attached to a person of their sentence by their own gender (see
+    # _local_possessor), whom an alignment through an ungendered source possessive does not overrule.
+    read_by_form: set[str] = field(default_factory=set)
 
 
 class _Clusters:
@@ -93,6 +96,7 @@ def resolve_chains(
     cl = _Clusters(ms)
     certainty: dict[str, float] = {}
     antecedent: dict[str, str] = {}
+    read_by_form: set[str] = set()
 
     apart = _contained_pairs(ms, parses) | _disjoint_arguments(ms, parses)
 
@@ -248,8 +252,14 @@ def resolve_chains(
             continue
         if not m.animate and m.gender is None:
             continue  # "it", "its", "ello": a thing, it joins no person
-        best, alternatives = _pick_antecedent(m, ms, cl, parses, use_gender)
+        best, alternatives, others = _pick_antecedent(m, ms, cl, parses, use_gender)
         if best is None:
+            continue
+        local = None if use_gender else _local_possessor(m, best, others, cl)
+        if local is not None and try_union(local, m):
+            antecedent[m.id] = local.id
+            read_by_form.add(m.id)
+            certainty[m.id] = ALTERNATIVE_CERTAINTY  # the salient person was the other choice
             continue
         if try_union(best, m):
             antecedent[m.id] = best.id
@@ -267,7 +277,7 @@ def resolve_chains(
         chains.append(Chain(cid, side, tuple(members)))
         for mm in members:
             chain_of[mm.id] = cid
-    return Resolution(chains, chain_of, certainty, antecedent)
+    return Resolution(chains, chain_of, certainty, antecedent, read_by_form)
 
 
 def _clause_subject(ms: Sequence[Mention], m: Mention, clause: int) -> Mention | None:
@@ -494,6 +504,11 @@ def _in_fronted_adjunct(parsed: ParsedText, i: int, clause: int) -> bool:
     return t.head == clause and t.deprel.split(":")[0] in _ADJUNCTS and max(parsed.subtree(k)) < clause
 
 
+def _semicolon_between(parsed: ParsedText, before: int, after: int) -> bool:
+    """Whether a semicolon stands between token `before` and a later token `after`."""
+    return before < after and any(t.text == ";" for t in parsed.tokens[before + 1:after])
+
+
 def _subtree(parsed: ParsedText, i: int) -> set[int]:
     return set(parsed.subtree(i))
 
@@ -513,8 +528,9 @@ def _salience(cand: Mention, m: Mention) -> float:
 
 
 def _pick_antecedent(m, ms, cl, parses, use_gender):
-    """The best preceding candidate for a pronoun or zero subject, and the compatible alternatives near it
-    (a choice made only because nothing else was there counts itself as its alternative: it is uncertain)."""
+    """The best preceding candidate for a pronoun or zero subject, the compatible alternatives near it (a choice
+    made only because nothing else was there counts itself as its alternative: it is uncertain), and every other
+    candidate, best first."""
     scored: dict[str, tuple[float, Mention]] = {}
     fallback = None
     containers = _noun_phrases_around(parses[m.seg], m.head) if m.pron_type == "possessive" else set()
@@ -572,7 +588,8 @@ def _pick_antecedent(m, ms, cl, parses, use_gender):
         # Binding principle C: a subject (overt or zero) does not corefer with a name or noun inside its own
         # clause ("∅ dijo [que el sospechoso...]", "he said John..."), unless the name stands in an adjunct
         # put before it, which the subject does not command ("Según la cuenta del director, ∅ ha hecho...",
-        # "According to the director's count, she has made...").
+        # "According to the director's count, she has made..."), or before a semicolon: that joins independent
+        # clauses, whatever the parser hung the first one on ("Ana was born in Tarvel; she grew up...").
         if (
             m.role in ("nsubj", "nsubj:pass")
             and c.seg == m.seg
@@ -580,6 +597,7 @@ def _pick_antecedent(m, ms, cl, parses, use_gender):
             and m.clause >= 0
             and c.head in _subtree(parses[m.seg], m.clause)
             and not _in_fronted_adjunct(parses[m.seg], c.head, m.clause)
+            and not _semicolon_between(parses[m.seg], c.head, m.head)
         ):
             continue
         # A speaker outside a quotation is not a person mentioned inside it, and vice versa.
@@ -621,11 +639,41 @@ def _pick_antecedent(m, ms, cl, parses, use_gender):
         if root not in scored or s > scored[root][0]:
             scored[root] = (s, c)
     if not scored:
-        return fallback, ([fallback] if fallback is not None else [])  # a fallback is never certain
+        return fallback, ([fallback] if fallback is not None else []), []  # a fallback is never certain
     ranked = sorted(scored.values(), key=lambda x: -x[0])
     best_score, best = ranked[0]
     alternatives = [c for s, c in ranked[1:] if best_score - s < ALTERNATIVE_MARGIN]
     if not use_gender and alternatives and m.gender:
         # Gender-blind side: an alternative only matters when its gender would fit the pronoun.
         alternatives = [c for c in alternatives if m.gender in (_genders(cl.members(c.id)) or {m.gender})]
-    return best, alternatives
+    return best, alternatives, [c for _, c in ranked[1:]]
+
+
+def _local_possessor(m: Mention, best: Mention, others: Sequence[Mention], cl: _Clusters) -> Mention | None:
+    """Gender-blind side: a possessive whose own form shows a gender ("his", "her") is read the way a reader
+    of the target reads it where its clause offers two people. When the salient antecedent is the subject of
+    a clause of the same sentence and every gendered word of its chain says the other gender, while the object
+    of that clause, standing between the subject and the possessive, could be meant ("She killed Dario Vell by
+    pressing his face"), the possessive is about the object. A chain that already mixes genders proves nothing
+    about the possessive and keeps it; so does an object whose chain shows the other gender too. Only the
+    direct object competes: a person in a prepositional phrase or inside the subject ("Ortuño's wife ... made
+    his first appearance") is no rival to the subject for a reader."""
+    if m.pron_type != "possessive" or m.gender not in ("fem", "masc"):
+        return None
+    if (best.seg != m.seg or best.sent != m.sent or _order(best) > _order(m)
+            or best.role not in ("nsubj", "nsubj:pass") or best.clause < 0):
+        return None
+    other_gender = "masc" if m.gender == "fem" else "fem"
+    if _genders(cl.members(best.id)) != {other_gender}:
+        return None
+    fitting = [
+        c for c in others
+        if c.seg == m.seg and c.clause == best.clause and c.role in OBJECT_RELS
+        and _order(best) < _order(c) < _order(m) and c.kind in ("name", "noun")
+        and other_gender not in _genders(cl.members(c.id))
+    ]
+    return max(fitting, key=_order) if fitting else None
+
+
+# Direct and indirect objects (UD and ClearNLP labels).
+OBJECT_RELS = ("obj", "dobj", "iobj", "dative")

@@ -78,6 +78,10 @@ def link_mentions(
             if m.pron_type == "possessive":
                 # "his daughter" / "su hija": a possessive aligned to the possessed noun is not about it.
                 via = {v for v in via if v.kind == "pronoun"}
+                if m.id in tgt_res.read_by_form:
+                    # "su cara" leaves its possessor to the reader; "his face", read in its own sentence,
+                    # names someone there: the source resolver's guess for "su" does not overrule it.
+                    via = {v for v in via if v.gender is not None}
             hits = {chain[v.id] for v in via}
             if len(hits) == 1:
                 link = Link(m.id, hits.pop(), "alignment", CONF_ALIGNED, min(via, key=lambda v: v.start).id)

@@ -188,6 +188,7 @@ def extract_mentions(
         for t in toks
         if rules.is_person_noun(t.text)
         and not _is_plural(t)
+        and not _noun_modifier(parsed, t, rules)
         and (t.text.lower() not in rules.title_only or _as_title(t, toks))
         and (
             t.upos in ("NOUN", "PROPN")
@@ -479,11 +480,25 @@ def is_expletive(parsed: ParsedText, t: Token, rules: LanguageRules) -> bool:
     lemma = head.lemma.lower()
     if lemma in rules.expletive_verbs or (lemma in rules.expletive_clausal_verbs and clausal):
         return True
-    if any(k.text.lower() in rules.expletive_clitics for k in kids):
+    if _impersonal_clitic(parsed, head, rules):
         return True
+    # A modal or raising verb passes the impersonal subject of its infinitive up: "il doit y avoir", "il va
+    # falloir", "il peut exister" (but "il doit y aller": he must go there).
+    for k in kids:
+        if k.deprel == "xcomp" and k.feat("VerbForm") == "Inf" and (
+            k.lemma.lower() in rules.expletive_verbs or _impersonal_clitic(parsed, k, rules)
+        ):
+            return True
     if rules.expletive_copular_clause and any(k.deprel == "cop" for k in kids) and head.upos == "ADJ":
         return clausal
     return False
+
+
+def _impersonal_clitic(parsed: ParsedText, verb: Token, rules: LanguageRules) -> bool:
+    """A verb with an impersonal clitic ("il y a"), where the rules name the verbs it makes impersonal."""
+    if rules.expletive_clitic_verbs and verb.lemma.lower() not in rules.expletive_clitic_verbs:
+        return False
+    return any(k.text.lower() in rules.expletive_clitics for k in parsed.children(verb.i))
 
 
 def _gender_doublet(parsed: ParsedText, t: Token, rules: LanguageRules) -> bool:
@@ -501,6 +516,30 @@ def _gender_doublet(parsed: ParsedText, t: Token, rules: LanguageRules) -> bool:
         if theirs and not (theirs & mine) and None not in theirs:
             return True
     return False
+
+
+def _noun_modifier(parsed: ParsedText, t: Token, rules: LanguageRules) -> bool:
+    """A person-noun form used as a modifier of the thing noun right before it, with no determiner of its own:
+    French "la ligne directrice", "l'idée maîtresse", Spanish "la idea madre". It agrees with that noun and
+    names no one. After a person noun it is still a person ("la mujer policía"). The two words must hang
+    together: the modifier on the noun, or the two with one function side by side (two subjects of one verb:
+    the same phrase misread)."""
+    if t.i == 0:
+        return False
+    before = parsed.tokens[t.i - 1]
+    # A thing noun as the subject of the word right after it, with no copula between, is that misparse too.
+    linked = t.head == before.i or (before.head == t.i and before.deprel.startswith("nsubj"))
+    if not linked and (t.head != before.head or t.deprel != before.deprel):
+        return False
+    # Used as an adjective it agrees with the noun in gender and number: "la ligne directrice", but "depuis des
+    # années directrice", "hace años directora" are a time phrase and a person.
+    return (
+        before.upos == "NOUN"
+        and not rules.is_person_noun(before.text)
+        and before.gender == t.gender
+        and not _is_plural(before)
+        and not any(k.deprel.startswith("det") for k in parsed.children(t.i))
+    )
 
 
 def _noun_mention(prefix, side, seg, t: Token, role: str, clause: int, key: str, marks) -> Mention:

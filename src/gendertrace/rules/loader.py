@@ -77,6 +77,7 @@ class LanguageRules:
     expletive_verbs: frozenset[str] = frozenset()
     expletive_clausal_verbs: frozenset[str] = frozenset()
     expletive_clitics: frozenset[str] = frozenset()
+    expletive_clitic_verbs: frozenset[str] = frozenset()  # empty: the clitic makes any verb impersonal
     expletive_copular_clause: bool = False
     neutral_words: dict[str, str] = field(default_factory=dict)  # form -> number (sing/plur) of neutral forms
     neutral_doublet_conjunctions: frozenset[str] = frozenset()
@@ -299,10 +300,11 @@ def parse_rules(data: Any, path: Path) -> LanguageRules:
     )
     if not isinstance(expl, dict):
         raise _fail(path, "expletives", f"expected a mapping, found {expl!r}")
-    expl = {"clausal_verbs": [], **expl}  # optional: verbs impersonal only with a clausal complement
+    # Optional: verbs impersonal only with a clausal complement; verbs the clitics make impersonal.
+    expl = {"clausal_verbs": [], "clitic_verbs": [], **expl}
     expl_lists = {
         k: frozenset(w.lower() for w in _str_list(expl, k, path, "expletives."))
-        for k in ("pronouns", "verbs", "clausal_verbs", "clitics")
+        for k in ("pronouns", "verbs", "clausal_verbs", "clitics", "clitic_verbs")
     }
     copular_clause = _require(expl, "copular_clause", bool, path, "expletives.")
 
@@ -334,6 +336,7 @@ def parse_rules(data: Any, path: Path) -> LanguageRules:
         expletive_verbs=expl_lists["verbs"],
         expletive_clausal_verbs=expl_lists["clausal_verbs"],
         expletive_clitics=expl_lists["clitics"],
+        expletive_clitic_verbs=expl_lists["clitic_verbs"],
         expletive_copular_clause=copular_clause,
         neutral_words=neutral_words,
         neutral_doublet_conjunctions=conjunctions,

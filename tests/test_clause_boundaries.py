@@ -1,0 +1,77 @@
+"""Where a clause ends for the resolver and the extractor: semicolons, raised impersonal subjects, and person-noun
+forms that modify a thing.
+
+Sentences, people and places are invented. Facts behind the rules (handbook grammar, from memory): a semicolon
+joins independent clauses, so neither commands the other; French modal and raising verbs ("devoir", "pouvoir",
+"aller") keep the impersonal subject of the infinitive they govern ("il doit y avoir", "il va falloir"); a noun
+such as "directrice" placed after a thing noun without a determiner of its own is used as an adjective ("la ligne
+directrice", "l'idée maîtresse").
+"""
+
+from __future__ import annotations
+
+import pytest
+
+from gendertrace import Scorer
+from gendertrace.mentions.extract import extract_mentions
+from gendertrace.parse.base import get_parser
+from gendertrace.rules import load_rules
+from scoring_helpers import chain_texts, score_pairs
+
+pytestmark = pytest.mark.slow
+
+
+@pytest.fixture(scope="module")
+def en_fr() -> Scorer:
+    return Scorer("en", "fr")
+
+
+@pytest.fixture(scope="module")
+def french_mentions():
+    parser, rules = get_parser("fr"), load_rules("fr")
+
+    def run(text: str) -> list[str]:
+        return [m.text for m in extract_mentions(parser.parse(text), 0, "s1", "target", rules)]
+
+    return run
+
+
+def _flags(result) -> list[tuple[str, str, str | None]]:
+    return [(f.kind, f.text, f.expected) for f in result.findings if f.kind != "assumption"]
+
+
+def test_a_name_before_a_semicolon_is_the_antecedent_of_the_subject_after_it(en_fr):
+    # The English parser hangs the first clause on "grew" as a complement; binding would then keep "she" away
+    # from "Ilse Varga", and the source would say nothing about her.
+    result = score_pairs(en_fr, [
+        ("Ilse Varga was born in Tarvel in 1931; she grew up on a farm.",
+         "Ilse Varga est née à Tarvel en 1931 ; elle a grandi dans une ferme."),
+        ("Later, Ilse Varga left for Lyon.", "Plus tard, Ilse Varga est parti à Lyon."),
+    ])
+    assert "she" in chain_texts(result, "source", "Ilse Varga")
+    assert _flags(result) == [("contradiction", "parti", "fem")]
+
+
+def test_a_modal_keeps_the_impersonal_subject_of_its_infinitive(french_mentions):
+    assert "il" not in french_mentions("Selon le règlement, il doit y avoir un vote.")
+    assert "Il" not in french_mentions("Il va falloir partir tôt.")
+
+
+def test_a_modal_with_a_locative_clitic_keeps_its_person_subject(french_mentions):
+    # "y" is impersonal only with "avoir": "il doit y aller" is someone who must go there.
+    assert "Il" in french_mentions("Il doit y aller demain.")
+
+
+def test_a_person_noun_modifying_a_thing_names_no_one(french_mentions):
+    assert "directrice" not in french_mentions("La ligne directrice interdit ce genre de dons.")
+    assert "maîtresse" not in french_mentions("Elle a présenté l'idée maîtresse du projet.")
+    # After a person noun it is a person still, and with its own determiner too.
+    assert "directrice" in french_mentions("Nous avons rencontré la directrice de l'école.")
+
+
+def test_an_impersonal_subject_and_an_adjectival_noun_raise_nothing(en_fr):
+    result = score_pairs(en_fr, [
+        ("The guideline says there must be a vote.", "La ligne directrice dit qu'il doit y avoir un vote."),
+        ("Nora Vidal agrees with it.", "Nora Vidal est d'accord avec elle."),
+    ])
+    assert _flags(result) == []
