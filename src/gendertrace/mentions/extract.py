@@ -279,6 +279,10 @@ def extract_mentions(
                 marks.append(
                     _mark(side, seg, seg_id, t, form.gender, "pronoun", weight, f"{form.type} pronoun")
                 )
+            elif form.case == "acc" and (part := _participle_after_clitic(parsed, t)) is not None:
+                # "l'ha descritta", "elle l'a vue": the participle shows the elided clitic's gender.
+                marks.append(_mark(side, seg, seg_id, part, part.gender, "agreement", W_CLITIC,
+                                   "participle agreeing with an object clitic"))
             marks += [_mark(side, seg, seg_id, k, k.gender, "agreement", W_ADJECTIVE, "agreeing intensifier")
                       for k in intensifiers]
             role, clause = _role_and_clause(parsed, t.i)
@@ -492,6 +496,16 @@ def is_expletive(parsed: ParsedText, t: Token, rules: LanguageRules) -> bool:
     if rules.expletive_copular_clause and any(k.deprel == "cop" for k in kids) and head.upos == "ADJ":
         return clausal
     return False
+
+
+def _participle_after_clitic(parsed: ParsedText, t: Token) -> Token | None:
+    """The singular past participle a preceding object clitic hangs on, where it shows a gender."""
+    if t.is_root or not t.deprel.startswith("obj") or t.head < t.i:
+        return None
+    head = parsed.tokens[t.head]
+    if head.participle and head.gender in ("fem", "masc") and not _is_plural(head):
+        return head
+    return None
 
 
 def _impersonal_clitic(parsed: ParsedText, verb: Token, rules: LanguageRules) -> bool:

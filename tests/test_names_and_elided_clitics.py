@@ -1,0 +1,94 @@
+"""Names that only one side's recogniser could have found, and the gender an elided object clitic shows through
+its participle.
+
+Sentences, people and places are invented. Facts behind the rules: UD treebanks in CoNLL-U carry no entity
+labels unless a MISC attribute adds them (CoNLL-U format documentation, from memory), so a document read from
+them has names only where the other side's recogniser finds them; a past participle after the direct-object
+clitic "l'" agrees with it in French and Italian ("elle l'a vue", "l'ha descritta"; handbook grammar, from
+memory).
+"""
+
+from __future__ import annotations
+
+from dataclasses import replace
+from pathlib import Path
+
+import pytest
+
+from gendertrace.mentions.extract import extract_mentions
+from gendertrace.parse.base import get_parser
+from gendertrace.parse.conllu_backend import read_conllu
+from gendertrace.pipeline import _shared_unlabelled_names
+from gendertrace.rules import load_rules
+
+
+def _rows(*rows: tuple) -> str:
+    """Ten-column CoNLL-U word lines from (ID, FORM, LEMMA, UPOS, FEATS, HEAD, DEPREL[, MISC])."""
+    out = []
+    for tid, form, lemma, upos, feats, head, deprel, *misc in rows:
+        out.append("\t".join([tid, form, lemma, upos, "_", feats, head, deprel, "_", misc[0] if misc else "_"]))
+    return "\n".join(out) + "\n"
+
+
+def _parse(tmp_path: Path, lang: str, text: str, rows: str):
+    path = tmp_path / f"{lang}.conllu"
+    path.write_text(f"# sent_id = s1\n# text = {text}\n{rows}\n", encoding="utf-8")
+    (sent,) = read_conllu(path, lang)
+    return sent.parsed
+
+
+@pytest.fixture()
+def pair(tmp_path):
+    # Source without entity labels (as the treebanks come); target with a recogniser that found "Angel" only.
+    source = _parse(tmp_path, "es", "Dario Vell llamó a Angel desde Tarvel .", _rows(
+        ("1", "Dario", "Dario", "PROPN", "_", "3", "nsubj"),
+        ("2", "Vell", "Vell", "PROPN", "_", "1", "flat"),
+        ("3", "llamó", "llamar", "VERB", "Number=Sing|Person=3", "0", "root"),
+        ("4", "a", "a", "ADP", "_", "5", "case"),
+        ("5", "Angel", "Angel", "PROPN", "_", "3", "obj"),
+        ("6", "desde", "desde", "ADP", "_", "7", "case"),
+        ("7", "Tarvel", "Tarvel", "PROPN", "_", "3", "obl"),
+        ("8", ".", ".", "PUNCT", "_", "3", "punct"),
+    ))
+    target = _parse(tmp_path, "en", "Dario Vell III called Angel from Tarvel Bay .", _rows(
+        ("1", "Dario", "Dario", "PROPN", "_", "4", "compound"),
+        ("2", "Vell", "Vell", "PROPN", "_", "4", "compound"),
+        ("3", "III", "III", "PROPN", "_", "4", "nsubj"),
+        ("4", "called", "call", "VERB", "_", "0", "root"),
+        ("5", "Angel", "Angel", "PROPN", "_", "4", "obj", "NE=PER"),
+        ("6", "from", "from", "ADP", "_", "8", "case"),
+        ("7", "Tarvel", "Tarvel", "PROPN", "_", "8", "compound"),
+        ("8", "Bay", "Bay", "PROPN", "_", "4", "obl"),
+        ("9", ".", ".", "PUNCT", "_", "4", "punct"),
+    ))
+    return source, target
+
+
+def test_a_proper_noun_run_on_both_sides_that_no_recogniser_labelled_is_a_name(pair):
+    source, target = pair
+    # "Dario Vell" stands in both; "III" is a numeral the two taggers treat differently. "Tarvel" is one word on
+    # the source side: a single proper noun is too weak a sign.
+    assert _shared_unlabelled_names([source], [target]) == {"dario vell", "dario", "vell"}
+
+
+def test_a_run_the_recogniser_labelled_otherwise_is_no_name(pair):
+    source, target = pair
+    place = replace(target, tokens=tuple(replace(t, ent="LOC") if t.text in ("Dario", "Vell", "III") else t
+                                         for t in target.tokens))
+    assert _shared_unlabelled_names([source], [place]) == set()
+
+
+def test_sides_that_both_recognise_names_keep_their_own_labels(pair):
+    source, target = pair
+    labelled = replace(source, tokens=tuple(replace(t, ent="PER") if t.text == "Angel" else t
+                                            for t in source.tokens))
+    assert _shared_unlabelled_names([labelled], [target]) == set()
+
+
+@pytest.mark.slow
+def test_a_participle_shows_the_gender_of_an_elided_object_clitic():
+    parsed = get_parser("fr").parse("Elle l'a vue hier au marché.")
+    clitic = next(m for m in extract_mentions(parsed, 0, "s1", "target", load_rules("fr")) if m.text == "l'")
+    assert [(mk.text, mk.gender, mk.rule) for mk in clitic.marks] == [
+        ("vue", "fem", "participle agreeing with an object clitic")
+    ]
