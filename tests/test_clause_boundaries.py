@@ -75,3 +75,36 @@ def test_an_impersonal_subject_and_an_adjectival_noun_raise_nothing(en_fr):
         ("Nora Vidal agrees with it.", "Nora Vidal est d'accord avec elle."),
     ])
     assert _flags(result) == []
+
+
+@pytest.fixture(scope="module")
+def french_resolution():
+    from gendertrace.coref.sieves import resolve_chains
+
+    parser, rules = get_parser("fr"), load_rules("fr")
+
+    def run(*texts: str, thing_pronouns=rules.thing_pronouns):
+        parses = [parser.parse(t) for t in texts]
+        ms = [m for k, p in enumerate(parses) for m in extract_mentions(p, k, f"s{k}", "source", rules)]
+        return ms, resolve_chains(ms, parses, "source", use_gender=True, role_markers=rules.role_markers,
+                                  thing_pronouns=thing_pronouns)
+
+    return run
+
+
+def test_a_thing_subject_of_the_same_gender_makes_a_pronoun_less_surely_a_person(french_resolution):
+    # "la mairie" may be who "elle" is: the choice of Varel stays, less surely (the rules list "elle" among
+    # the pronouns that also stand for things).
+    texts = ("La mairie a confirmé que Varel partira en mars.", "Elle a ajouté que rien ne change.")
+    ms, res = french_resolution(*texts)
+    elle = next(m for m in ms if m.text == "Elle")
+    ms_plain, res_plain = french_resolution(*texts, thing_pronouns=frozenset())
+    elle_plain = next(m for m in ms_plain if m.text == "Elle")
+    assert res.certainty[elle.id] < res_plain.certainty[elle_plain.id]
+    assert res.certainty[elle.id] <= 0.5
+
+
+def test_a_thing_subject_of_the_other_gender_is_no_rival(french_resolution):
+    ms, res = french_resolution("Le conseil a confirmé que Varel partira en mars.", "Elle a ajouté que rien ne change.")
+    elle = next(m for m in ms if m.text == "Elle")
+    assert res.certainty.get(elle.id, 1.0) > 0.5

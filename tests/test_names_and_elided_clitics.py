@@ -92,3 +92,22 @@ def test_a_participle_shows_the_gender_of_an_elided_object_clitic():
     assert [(mk.text, mk.gender, mk.rule) for mk in clitic.marks] == [
         ("vue", "fem", "participle agreeing with an object clitic")
     ]
+
+
+@pytest.mark.slow
+@pytest.mark.parametrize("text, name", [
+    # The French tagger calls these surnames a pronoun and a conjunction; its recogniser calls them persons.
+    ("Le syndicat affirme que Vogt ne parlait pas aux journalistes.", "Vogt"),
+    ("Le maire pense que Vogt viendra demain.", "Vogt"),
+])
+def test_a_capitalised_person_inside_a_sentence_is_a_name_whatever_its_tag(text, name):
+    parsed = get_parser("fr").parse(text)
+    mentions = extract_mentions(parsed, 0, "s1", "source", load_rules("fr"))
+    assert [(m.kind, m.text) for m in mentions if m.text == name] == [("name", name)]
+
+
+@pytest.mark.slow
+def test_a_sentence_initial_pronoun_is_never_a_name():
+    parsed = get_parser("fr").parse("Elle affirme que le maire viendra demain.")
+    assert [m.kind for m in extract_mentions(parsed, 0, "s1", "source", load_rules("fr"))
+            if m.text == "Elle"] == ["pronoun"]

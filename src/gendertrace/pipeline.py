@@ -175,9 +175,9 @@ class Scorer:
                         for m in extract_mentions(p, k, seg_ids[k], "target", self.tgt_rules, src_names)]
         # Gender agreement helps on the source, which is not being checked; it is off on the target.
         src_mentions, src_res = _chains_with_singular_they(src_mentions, pd.source, "source", True,
-                                                           self.src_rules.role_markers)
+                                                           self.src_rules)
         tgt_mentions, tgt_res = _chains_with_singular_they(tgt_mentions, pd.target, "target", False,
-                                                           self.tgt_rules.role_markers)
+                                                           self.tgt_rules)
         links = link_mentions(src_mentions, tgt_mentions, src_res, tgt_res, pd.source, pd.target, alignments,
                               self.lexicon)
         entities, _ = build_entities(src_res, tgt_res, tgt_mentions, links)
@@ -200,10 +200,11 @@ class Scorer:
                               tuple(src_res.chains) + tuple(tgt_res.chains))
 
 
-def _chains_with_singular_they(mentions, parses, side, use_gender, role_markers):
+def _chains_with_singular_they(mentions, parses, side, use_gender, rules):
     """Chains of one side; a 'they' stays a mention (of one person, neutral) only where its chain shows a
     singular antecedent, else it is plural they and leaves the chains are resolved again without it."""
-    res = resolve_chains(mentions, parses, side, use_gender=use_gender, role_markers=role_markers)
+    res = resolve_chains(mentions, parses, side, use_gender=use_gender, role_markers=rules.role_markers,
+                         thing_pronouns=rules.thing_pronouns)
     candidates = [m for m in mentions if any(mk.rule == SINGULAR_THEY_RULE for mk in m.marks)]
     if not candidates:
         return mentions, res
@@ -215,7 +216,8 @@ def _chains_with_singular_they(mentions, parses, side, use_gender, role_markers)
     if not drop:
         return mentions, res
     kept = [m for m in mentions if m.id not in drop]
-    return kept, resolve_chains(kept, parses, side, use_gender=use_gender, role_markers=role_markers)
+    return kept, resolve_chains(kept, parses, side, use_gender=use_gender, role_markers=rules.role_markers,
+                                thing_pronouns=rules.thing_pronouns)
 
 
 def _person_names(parses: Sequence[ParsedText]) -> set[str]:

@@ -20,6 +20,9 @@ PRONOUN_WINDOW = 3
 DISTANCE_CERTAINTY = (1.0, 0.9, 0.8, 0.7)
 # Certainty when another compatible antecedent was nearly as salient.
 ALTERNATIVE_CERTAINTY = 0.7
+# Certainty of a pronoun that also stands for things where a thing of its gender was a subject just before:
+# as likely the thing as the person.
+THING_CERTAINTY = 0.5
 # A competitor within this much salience counts as an alternative (less than the bonus for being a subject).
 ALTERNATIVE_MARGIN = 0.5
 
@@ -87,10 +90,12 @@ def resolve_chains(
     side: Side,
     use_gender: bool,
     role_markers: frozenset[str] = frozenset(),
+    thing_pronouns: frozenset[str] = frozenset(),
 ) -> Resolution:
     """Group one side's mentions into chains. `parses` are that side's segments, indexed by Mention.seg.
 
-    `role_markers` are the words that introduce a role held by the subject ("como", "as").
+    `role_markers` are the words that introduce a role held by the subject ("como", "as"); `thing_pronouns` the
+    subject pronouns that also stand for things ("il", "elle").
     """
     ms = sorted(mentions, key=_order)
     cl = _Clusters(ms)
@@ -263,9 +268,13 @@ def resolve_chains(
             continue
         if try_union(best, m):
             antecedent[m.id] = best.id
-            # Another compatible cluster nearly as salient makes the choice uncertain, and so does distance.
+            # Another compatible cluster nearly as salient makes the choice uncertain, and so does distance,
+            # and so does a thing the pronoun may stand for.
             far = min(m.seg - best.seg, len(DISTANCE_CERTAINTY) - 1)
-            certainty[m.id] = (1.0 if not alternatives else ALTERNATIVE_CERTAINTY) * DISTANCE_CERTAINTY[far]
+            sure = ALTERNATIVE_CERTAINTY if alternatives else 1.0
+            if m.key in thing_pronouns and _thing_subject_before(m, best, ms, parses):
+                sure = min(sure, THING_CERTAINTY)
+            certainty[m.id] = sure * DISTANCE_CERTAINTY[far]
 
     groups: dict[str, list[Mention]] = {}
     for m in ms:
@@ -647,6 +656,28 @@ def _pick_antecedent(m, ms, cl, parses, use_gender):
         # Gender-blind side: an alternative only matters when its gender would fit the pronoun.
         alternatives = [c for c in alternatives if m.gender in (_genders(cl.members(c.id)) or {m.gender})]
     return best, alternatives, [c for _, c in ranked[1:]]
+
+
+def _thing_subject_before(m: Mention, best: Mention, ms: Sequence[Mention],
+                          parses: Sequence[ParsedText]) -> bool:
+    """Whether a subject pronoun that also stands for things has a thing noun as a subject that agrees with it
+    in gender and number in its own segment before it or in the segment before, no further back than the
+    person picked for it ("La police a déclaré que Vogt... « ... », a-t-elle ajouté")."""
+    if m.kind != "pronoun" or m.pron_type != "personal" or m.role not in ("nsubj", "nsubj:pass"):
+        return False
+    if m.gender not in ("fem", "masc"):
+        return False
+    heads = {(x.seg, t) for x in ms for t in x.tokens}
+    for seg in (m.seg, m.seg - 1):
+        if seg < 0 or seg < best.seg:
+            continue
+        for t in parses[seg].tokens:
+            if seg == m.seg and t.i >= m.head:
+                break
+            if (t.upos == "NOUN" and t.deprel in ("nsubj", "nsubj:pass") and t.gender == m.gender
+                    and t.feat("Number") == "Sing" and (seg, t.i) not in heads):
+                return True
+    return False
 
 
 def _local_possessor(m: Mention, best: Mention, others: Sequence[Mention], cl: _Clusters) -> Mention | None:

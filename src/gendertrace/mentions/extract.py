@@ -78,7 +78,7 @@ def _name_spans(parsed: ParsedText, known_names: set[str]) -> list[list[int]]:
             run.clear()
 
     for t in toks:
-        is_name = t.ent == "PER" and t.upos in ("PROPN", "NOUN", "X", "ADJ")
+        is_name = t.ent == "PER" and (t.upos in ("PROPN", "NOUN", "X", "ADJ") or _capitalised_inside(parsed, t))
         if is_name and run and toks[run[-1]].sent == t.sent and run[-1] == t.i - 1:
             run.append(t.i)
             continue
@@ -100,6 +100,16 @@ def _name_spans(parsed: ParsedText, known_names: set[str]) -> list[list[int]]:
             spans.extend(_matching_subruns(run, toks, known_names))
     # Honorifics and titles tagged as part of the name are kept apart (they are marks, not the name).
     return sorted(spans)
+
+
+def _capitalised_inside(parsed: ParsedText, t: Token) -> bool:
+    """A capitalised word inside its sentence, after a word: where the recogniser calls it a person and the
+    tagger a pronoun or a conjunction ("que Vogt ne parlait pas"), the tagger has misread a name (such words
+    are capitalised only at the start; listed pronoun forms are kept out of names by the caller)."""
+    if t.i == 0 or not t.text[:1].isupper():
+        return False
+    before = parsed.tokens[t.i - 1]
+    return before.sent == t.sent and before.text[:1].isalnum()
 
 
 def _matching_subruns(run: list[int], toks: tuple[Token, ...], known: set[str]) -> list[list[int]]:
@@ -135,6 +145,7 @@ def extract_mentions(
         sp
         for sp in _name_spans(parsed, known)
         if not any(f.gender == "neutral" for i in sp for f in rules.pronoun(toks[i].text))
+        and not any(toks[i].upos == "PRON" and rules.pronoun(toks[i].text) for i in sp)
     ]
     for span in spans:
         words = [toks[i] for i in span]

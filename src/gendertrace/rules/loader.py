@@ -73,6 +73,9 @@ class LanguageRules:
     # Person nouns that are also common words ("count"): persons only as a title, capitalised or before a name.
     title_only: frozenset[str] = frozenset()
     role_markers: frozenset[str] = frozenset()
+    # Subject pronouns that also stand for things ("la police ... a-t-elle ajouté"): a thing noun before them
+    # competes with the person the resolver picks.
+    thing_pronouns: frozenset[str] = frozenset()
     expletive_pronouns: frozenset[str] = frozenset()
     expletive_verbs: frozenset[str] = frozenset()
     expletive_clausal_verbs: frozenset[str] = frozenset()
@@ -156,6 +159,7 @@ TOP_KEYS = {
     "person_nouns",
     "expletives",
     "role_markers",
+    "thing_pronouns",
     "neutral_language",
 }
 
@@ -331,6 +335,9 @@ def parse_rules(data: Any, path: Path) -> LanguageRules:
         title_only=title_only,
         role_markers=frozenset(
             w.lower() for w in _str_list({"role_markers": [], **data}, "role_markers", path, "")
+        ),
+        thing_pronouns=frozenset(
+            w.lower() for w in _str_list({"thing_pronouns": [], **data}, "thing_pronouns", path, "")
         ),
         expletive_pronouns=expl_lists["pronouns"],
         expletive_verbs=expl_lists["verbs"],
