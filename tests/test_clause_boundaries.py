@@ -108,3 +108,28 @@ def test_a_thing_subject_of_the_other_gender_is_no_rival(french_resolution):
     ms, res = french_resolution("Le conseil a confirmé que Varel partira en mars.", "Elle a ajouté que rien ne change.")
     elle = next(m for m in ms if m.text == "Elle")
     assert res.certainty.get(elle.id, 1.0) > 0.5
+
+
+@pytest.fixture(scope="module")
+def en_es() -> Scorer:
+    return Scorer("en", "es")
+
+
+def test_an_indefinite_noun_phrase_is_a_new_person_not_the_earlier_one(en_es):
+    # "la mujer" and "un hombre" share a head once gender is set aside (as the target side does, to keep a
+    # flipped noun in its chain); an indefinite phrase introduces someone new, so the two stay apart.
+    result = score_pairs(en_es, [
+        ("The wife of a local judge opened her shop today.",
+         "La mujer de un juez local abrió hoy su tienda."),
+        ("Later a man came in and bought bread.", "Más tarde entró un hombre y compró pan."),
+    ])
+    assert "hombre" not in chain_texts(result, "target", "mujer")
+    assert _flags(result) == []
+
+
+def test_a_definite_noun_phrase_takes_up_the_earlier_person(en_es):
+    result = score_pairs(en_es, [
+        ("The minister opened the session today.", "La ministra abrió hoy la sesión."),
+        ("Later the minister left early.", "Más tarde el ministro se fue pronto."),
+    ])
+    assert chain_texts(result, "target", "ministra") == ["ministra", "ministro"]

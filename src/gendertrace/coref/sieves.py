@@ -224,11 +224,14 @@ def resolve_chains(
             if other is not m and try_union(other, m):
                 antecedent[m.id] = other.id
 
-    # Pass 5: role-noun head match ("la ministra ... la ministra").
+    # Pass 5: role-noun head match ("la ministra ... la ministra"). An indefinite noun phrase introduces a new
+    # person rather than taking up one already mentioned ("la mujer ... como un hombre"), so the later mention
+    # must not be indefinite.
     nouns = [m for m in ms if m.kind == "noun"]
     for i, a in enumerate(nouns):
         for b in nouns[i + 1 :]:
-            if a.key == b.key and cl.find(a.id) != cl.find(b.id) and not _different_names(cl, a, b):
+            if (a.key == b.key and cl.find(a.id) != cl.find(b.id) and not _different_names(cl, a, b)
+                    and not _indefinite(parses[b.seg], b.head)):
                 try_union(a, b)
 
     # Pass 6a: a first person inside a quotation is its speaker: the nearest subject outside the quotation in
@@ -511,6 +514,11 @@ def _in_fronted_adjunct(parsed: ParsedText, i: int, clause: int) -> bool:
         k = parsed.tokens[k].head
     t = parsed.tokens[k]
     return t.head == clause and t.deprel.split(":")[0] in _ADJUNCTS and max(parsed.subtree(k)) < clause
+
+
+def _indefinite(parsed: ParsedText, head: int) -> bool:
+    """Whether the noun phrase headed by token `head` has an indefinite article (UD Definite=Ind)."""
+    return any(k.deprel == "det" and k.feat("Definite") == "Ind" for k in parsed.children(head))
 
 
 def _semicolon_between(parsed: ParsedText, before: int, after: int) -> bool:
