@@ -111,3 +111,28 @@ def test_a_sentence_initial_pronoun_is_never_a_name():
     parsed = get_parser("fr").parse("Elle affirme que le maire viendra demain.")
     assert [m.kind for m in extract_mentions(parsed, 0, "s1", "source", load_rules("fr"))
             if m.text == "Elle"] == ["pronoun"]
+
+
+@pytest.mark.slow
+def test_a_clitic_only_chain_is_a_person_where_the_translation_says_so():
+    # French "la" may stand for a thing, so a chain of nothing else makes no entity by itself; linked to a
+    # translation's "him", it is a person, and its feminine form counts (weakly) against "him".
+    from gendertrace.coref.sieves import resolve_chains
+    from gendertrace.evidence.resolve import build_entities
+    from gendertrace.model import Link
+
+    src = get_parser("fr").parse("Je la connais depuis longtemps.")
+    tgt = get_parser("en").parse("I have known him for a long time.")
+    src_ms = extract_mentions(src, 0, "s1", "source", load_rules("fr"))
+    tgt_ms = extract_mentions(tgt, 0, "s1", "target", load_rules("en"))
+    src_res = resolve_chains(src_ms, [src], "source", use_gender=True)
+    tgt_res = resolve_chains(tgt_ms, [tgt], "target", use_gender=False)
+    clitic = next(m for m in src_ms if m.text == "la")
+    him = next(m for m in tgt_ms if m.text == "him")
+    links = {him.id: Link(him.id, src_res.chain_of[clitic.id], "alignment", 0.85, clitic.id)}
+    entities, _ = build_entities(src_res, tgt_res, tgt_ms, links)
+    (entity,) = [e for e in entities if e.source_mentions]
+    assert [m.text for m in entity.target_mentions] == ["him"]
+    assert ("la", "fem") in [(mk.text, mk.gender) for mk in entity.evidence]
+    # Without a person in the translation the clitic stays a thing.
+    assert [e for e in build_entities(src_res, tgt_res, tgt_ms, {})[0] if e.source_mentions] == []

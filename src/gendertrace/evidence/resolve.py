@@ -70,8 +70,10 @@ def build_entities(
     n = 0
     for ch in src_res.chains:
         targets = by_source_chain.get(ch.id, [])
-        if not any(m.animate for m in ch.mentions):
-            continue  # only pronouns that may stand for things ("it", "lo"): no person is meant
+        if not any(m.animate for m in ch.mentions + tuple(targets)):
+            # Only pronouns that may stand for things ("it", "lo") on both sides: no person is meant. Where the
+            # translation says "him" or "she" for such a clitic ("le ho chiesto"), it speaks of a person.
+            continue
         # A source mark counts as much as its mention is surely part of the chain.
         source_marks = [
             replace(mk, weight=mk.weight * src_res.certainty.get(m.id, 1.0))

@@ -262,7 +262,7 @@ def extract_mentions(
         inverted = len(t.text) > 1 and t.text.startswith("-") and t.deprel.startswith("nsubj")
         if (t.upos in ("PRON", "DET") or neutral_form or inverted) and rules.pronoun(t.text):
             # Taggers often miss neopronouns and "elle" as pronouns: their relation in the clause decides.
-            form = (_pick_pronoun_form(t, rules) if t.upos in ("PRON", "DET") or inverted
+            form = (_pick_pronoun_form(parsed, t, rules) if t.upos in ("PRON", "DET") or inverted
                     else _neutral_form(t, rules))
             if form is not None and form.stressed and _after_preposition(parsed, t):
                 form = replace(form, gender=form.stressed)
@@ -586,10 +586,12 @@ def _after_preposition(parsed: ParsedText, t: Token) -> bool:
     return t.i > 0 and toks[t.i - 1].upos == "ADP" and toks[t.i - 1].sent == t.sent
 
 
-def _pick_pronoun_form(t: Token, rules: LanguageRules):
+def _pick_pronoun_form(parsed: ParsedText, t: Token, rules: LanguageRules):
     forms = rules.pronoun(t.text)
-    if t.upos == "DET" and not any(f.type == "possessive" for f in forms):
-        return None  # "la", "le", "el" as articles
+    if t.upos == "DET" and not any(f.type == "possessive" for f in forms) and not (
+        t.i < t.head and _verb_clitic(parsed, t)
+    ):
+        return None  # "la", "le", "el" as articles (but "je la connais": an object before its verb)
     # Where the parse gives the token's own number, prefer the reading that has it (German "sie": sing/plur).
     number = {"Sing": "sing", "Plur": "plur"}.get(t.feat("Number") or "")
     if number and t.feat("Poss") != "Yes":
