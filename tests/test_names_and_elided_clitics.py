@@ -136,3 +136,32 @@ def test_a_clitic_only_chain_is_a_person_where_the_translation_says_so():
     assert ("la", "fem") in [(mk.text, mk.gender) for mk in entity.evidence]
     # Without a person in the translation the clitic stays a thing.
     assert [e for e in build_entities(src_res, tgt_res, tgt_ms, {})[0] if e.source_mentions] == []
+
+
+@pytest.mark.slow
+def test_a_fused_article_and_an_agreeing_determiner_show_the_nouns_gender():
+    # "del" is "de" + "el" in one word (UD AdpType=Preppron); "propio" agrees with its noun like any determiner.
+    from gendertrace import Scorer
+    from scoring_helpers import score_pairs
+
+    result = score_pairs(Scorer("es", "en"), [
+        ("Según las notas del propio entrenador, ha ganado seis torneos.",
+         "According to the coach's own notes, she has won six tournaments."),
+    ])
+    coach = next(e for e in result.entities if e.label == "entrenador")
+    assert {(mk.text, mk.gender) for mk in coach.evidence} >= {("del", "masc"), ("propio", "masc")}
+    assert [(f.kind, f.text, f.expected) for f in result.findings] == [("contradiction", "she", "masc")]
+
+
+def test_a_bare_preposition_shaped_like_an_article_is_no_evidence(tmp_path):
+    # Portuguese "ao" is "a" (preposition) + "o" (article); treebanks split it, and the "a" is no feminine article.
+    parsed = _parse(tmp_path, "pt", "Falou ao cliente .", _rows(
+        ("1", "Falou", "falar", "VERB", "Mood=Ind|Number=Sing|Person=3|VerbForm=Fin", "0", "root"),
+        ("2-3", "ao", "_", "_", "_", "_", "_"),
+        ("2", "a", "a", "ADP", "_", "4", "case"),
+        ("3", "o", "o", "DET", "Definite=Def|Gender=Masc|Number=Sing|PronType=Art", "4", "det"),
+        ("4", "cliente", "cliente", "NOUN", "Gender=Masc|Number=Sing", "1", "obl"),
+        ("5", ".", ".", "PUNCT", "_", "1", "punct"),
+    ))
+    client = next(m for m in extract_mentions(parsed, 0, "s1", "source", load_rules("pt")) if m.text == "cliente")
+    assert [(mk.text, mk.gender) for mk in client.marks if mk.rule == "determiner agreement"] == [("o", "masc")]

@@ -700,14 +700,22 @@ def _np_marks(parsed, head, rules, side, seg, seg_id, noun_form: bool) -> list[E
         return []
     marks = []
     for c in parsed.children(head):
+        if c.deprel == "case" and c.i < head and not _is_plural(c) and (g := rules.article_gender(c.text)):
+            # A preposition fused with the article ("del propio director", "au directeur") carries its gender;
+            # the tagger shows the fusion (UD AdpType=Preppron, or the article's features on the word), which
+            # tells it from a bare preposition of the same form (Portuguese "a").
+            fused = c.feat("AdpType") == "Preppron" or c.feat("PronType") == "Art"
+            if g in ("fem", "masc") and c.upos == "ADP" and fused:
+                marks.append(_mark(side, seg, seg_id, c, g, "morphology", W_DETERMINER, "determiner agreement"))
+            continue
         if c.deprel not in rules.dependents or _is_plural(c):
             continue
         if c.feat("Poss") == "Yes" or rules.pronoun(c.text) and c.upos == "PRON":
             continue  # possessives agree with the possessed noun, not with the person (rules: possessed)
         if c.deprel.startswith("det"):
             g = rules.article_gender(c.text)
-            if g is None and c.feat("PronType") in ("Art", "Dem"):
-                g = c.gender
+            if g is None and c.upos == "DET":
+                g = c.gender  # any determiner agrees with its noun: articles, demonstratives, "propio", "otro"
             if g in ("fem", "masc") and c.i < head:
                 marks.append(
                     _mark(side, seg, seg_id, c, g, "morphology", W_DETERMINER, "determiner agreement")
