@@ -165,3 +165,17 @@ def test_a_bare_preposition_shaped_like_an_article_is_no_evidence(tmp_path):
     ))
     client = next(m for m in extract_mentions(parsed, 0, "s1", "source", load_rules("pt")) if m.text == "cliente")
     assert [(mk.text, mk.gender) for mk in client.marks if mk.rule == "determiner agreement"] == [("o", "masc")]
+
+
+@pytest.mark.slow
+def test_a_thing_capable_clitic_translated_by_a_person_pronoun_counts_in_full():
+    # "lo" may be "it"; translated by "her" it is a person, whom the source calls masculine (handbook grammar:
+    # Spanish accusative clitics agree in gender with their referent, from memory).
+    from gendertrace import Scorer
+    from scoring_helpers import score_pairs
+
+    result = score_pairs(Scorer("es", "en"), [("Lo conozco desde hace años.", "I have known her for years.")])
+    assert [(f.kind, f.text, f.expected) for f in result.findings] == [("contradiction", "her", "masc")]
+    # Translated by "it", the same clitic is a thing and raises nothing.
+    thing = score_pairs(Scorer("es", "en"), [("Lo conozco desde hace años.", "I have known it for years.")])
+    assert list(thing.findings) == []

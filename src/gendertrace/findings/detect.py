@@ -14,6 +14,7 @@ from dataclasses import dataclass, replace
 
 from gendertrace.declared.policy import Policy
 from gendertrace.evidence.resolve import STRENGTH_SCALE, dedupe, resolve_gender
+from gendertrace.mentions.extract import W_PRONOUN
 from gendertrace.model import DocumentStats, Entity, EvidenceItem, Finding, Link, Mention
 
 PREDICATE_RULES = ("predicative with copula", "participle with agreeing auxiliary", "secondary predicate")
@@ -321,6 +322,13 @@ def _direct_verdict(r: Reference, links: dict[str, Link], e: Entity):
     if via is None or not via.marks:
         return None
     marks = list(dedupe(via.marks))
+    if (r.mention.kind == "pronoun" and r.mention.animate and not via.animate
+            and r.mention.pron_type == via.pron_type):
+        # A source pronoun that may stand for a thing ("ihn", "lo") translated by one of the same kind that only
+        # stands for a person ("him") is about a person, and then its gender is the person's: it counts in
+        # full. (A possessive "her" paired with an object "lo" is more likely a misalignment.)
+        marks = [replace(mk, weight=W_PRONOUN) if mk.kind == "pronoun" and mk.side == "source" else mk
+                 for mk in marks]
     verdict = resolve_gender(marks)
     if verdict.gender not in ("fem", "masc"):
         return None
