@@ -133,3 +133,18 @@ def test_a_definite_noun_phrase_takes_up_the_earlier_person(en_es):
         ("Later the minister left early.", "Más tarde el ministro se fue pronto."),
     ])
     assert chain_texts(result, "target", "ministra") == ["ministra", "ministro"]
+
+
+@pytest.mark.parametrize("text", [
+    "« Nous partons demain », a-t-elle ajouté.",
+    "« Je suis désolé de vous presser, mais tout repose sur vous », dit-elle à la foule.",
+])
+def test_an_inverted_subject_clitic_is_the_subject_of_its_verb(text):
+    # Handbook grammar (from memory): in "dit-elle", "a-t-elle", the hyphenated clitic after the verb (with the
+    # euphonic "-t-") is its subject; the French tagger labels it an adjective, "dep" or "fixed" as it goes.
+    parsed = get_parser("fr").parse(text)
+    (elle,) = [m for m in extract_mentions(parsed, 0, "s1", "target", load_rules("fr")) if m.text == "-elle"]
+    assert elle.role == "nsubj"
+    assert parsed.tokens[elle.clause].lemma in ("ajouter", "dire")
+    # The quotation's own predicate ("désolée", with its own subject "Je") says nothing about the speaker.
+    assert [(mk.text, mk.gender) for mk in elle.marks] == [("-elle", "fem")]

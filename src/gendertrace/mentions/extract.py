@@ -258,8 +258,10 @@ def extract_mentions(
         neutral_form = (
             any(f.gender == "neutral" for f in rules.pronoun(t.text)) and t.deprel in NEUTRAL_PRONOUN_RELS
         )
-        # An inverted subject clitic ("dit-elle") is a pronoun whatever the tagger took it for.
-        inverted = len(t.text) > 1 and t.text.startswith("-") and t.deprel.startswith("nsubj")
+        # An inverted subject clitic ("dit-elle", "a-t-il") is a pronoun and the subject of the verb before it,
+        # whatever the tagger took it for.
+        inverted_verb = _inverted_subject_of(parsed, t)
+        inverted = inverted_verb >= 0 or (len(t.text) > 1 and t.text.startswith("-") and t.deprel.startswith("nsubj"))
         if (t.upos in ("PRON", "DET") or neutral_form or inverted) and rules.pronoun(t.text):
             # Taggers often miss neopronouns and "elle" as pronouns: their relation in the clause decides.
             form = (_pick_pronoun_form(parsed, t, rules) if t.upos in ("PRON", "DET") or inverted
@@ -297,6 +299,10 @@ def extract_mentions(
             marks += [_mark(side, seg, seg_id, k, k.gender, "agreement", W_ADJECTIVE, "agreeing intensifier")
                       for k in intensifiers]
             role, clause = _role_and_clause(parsed, t.i)
+            if inverted_verb >= 0:
+                verb = toks[inverted_verb]
+                role = "nsubj"
+                clause = verb.head if verb.deprel in ("aux", "aux:pass", "aux:tense", "cop") else verb.i
             if form.type == "possessive":
                 clause = _governing_clause(parsed, t.i)
             if form.type == "personal":
@@ -507,6 +513,18 @@ def is_expletive(parsed: ParsedText, t: Token, rules: LanguageRules) -> bool:
     if rules.expletive_copular_clause and any(k.deprel == "cop" for k in kids) and head.upos == "ADJ":
         return clausal
     return False
+
+
+def _inverted_subject_of(parsed: ParsedText, t: Token) -> int:
+    """The verb an inverted subject clitic follows ("dit-elle", "a-t-il": the hyphenated form right after the
+    verb, or after the euphonic "-t"), or -1."""
+    if len(t.text) < 3 or not t.text.startswith("-") or t.i == 0:
+        return -1
+    k = t.i - 1
+    if parsed.tokens[k].text.lower() in ("-t", "-t-") and k > 0:
+        k -= 1
+    before = parsed.tokens[k]
+    return k if before.upos in ("VERB", "AUX") and before.sent == t.sent else -1
 
 
 def _participle_after_clitic(parsed: ParsedText, t: Token) -> Token | None:
@@ -832,7 +850,10 @@ def _predicate_marks(parsed, i, role, clause, rules, side, seg, seg_id, zero: bo
                 k.upos == "ADJ"
                 and k.deprel in ("xcomp", "advcl", "obj", "conj", "dep", "obl")
                 and not rules.is_person_noun(k.text)
-                and not any(d.deprel == "det" for d in parsed.children(k.i))
+                # An adjective with its own determiner is a noun; with its own subject or copula it heads a
+                # clause of its own ("« Je suis désolé », dit-elle").
+                and not any(d.deprel == "det" or d.deprel == "cop" or d.deprel.startswith("nsubj")
+                            for d in parsed.children(k.i))
             ):
                 add(k, "secondary predicate")
     return marks
