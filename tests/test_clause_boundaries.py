@@ -148,3 +148,19 @@ def test_an_inverted_subject_clitic_is_the_subject_of_its_verb(text):
     assert parsed.tokens[elle.clause].lemma in ("ajouter", "dire")
     # The quotation's own predicate ("désolée", with its own subject "Je") says nothing about the speaker.
     assert [(mk.text, mk.gender) for mk in elle.marks] == [("-elle", "fem")]
+
+
+def test_a_controlled_participle_agrees_with_the_subject_of_its_clause():
+    # Handbook grammar (from memory): with "être" the past participle agrees with the subject, and the subject
+    # of a non-finite adjunct ("après être arrivée") is the subject of the clause it hangs on.
+    parsed = get_parser("fr").parse("Après être arrivée à Lyon, Claire Dumas a ouvert une librairie.")
+    (claire,) = [m for m in extract_mentions(parsed, 0, "s1", "source", load_rules("fr")) if m.kind == "name"]
+    assert [(mk.text, mk.gender, mk.rule) for mk in claire.marks] == [
+        ("arrivée", "fem", "participle of a controlled clause")
+    ]
+
+
+def test_a_participle_with_a_subject_of_its_own_is_not_controlled():
+    parsed = get_parser("fr").parse("Après que son frère est arrivé à Lyon, Claire Dumas a ouvert une librairie.")
+    (claire,) = [m for m in extract_mentions(parsed, 0, "s1", "source", load_rules("fr")) if m.text == "Claire Dumas"]
+    assert not any(mk.text == "arrivé" for mk in claire.marks)

@@ -856,6 +856,18 @@ def _predicate_marks(parsed, i, role, clause, rules, side, seg, seg_id, zero: bo
                             for d in parsed.children(k.i))
             ):
                 add(k, "secondary predicate")
+    # A participle heading a non-finite adjunct or complement with no subject of its own, under an agreeing
+    # auxiliary, agrees with the subject that controls it ("dopo essersi offerto", "après être arrivée", "tras
+    # ser elegida").
+    for k in kids:
+        if k.deprel not in ("advcl", "xcomp") or not k.participle:
+            continue
+        own = parsed.children(k.i)
+        auxes = [d for d in own if d.deprel in ("aux", "aux:pass", "aux:tense")]
+        if (auxes and not any(d.finite for d in auxes)
+                and any(d.lemma.lower() in rules.agreeing_aux for d in auxes)
+                and not any(d.deprel.startswith("nsubj") for d in own)):
+            add(k, "participle of a controlled clause")
     return marks
 
 
