@@ -670,7 +670,7 @@ def _thing_subject_before(m: Mention, best: Mention, ms: Sequence[Mention],
                           parses: Sequence[ParsedText]) -> bool:
     """Whether a subject pronoun that also stands for things has a thing noun as a subject that agrees with it
     in gender and number in its own segment before it or in the segment before, no further back than the
-    person picked for it ("La police a déclaré que Vogt... « ... », a-t-elle ajouté")."""
+    person picked for it ("La mairie a confirmé que Varel... « ... », a-t-elle ajouté")."""
     if m.kind != "pronoun" or m.pron_type != "personal" or m.role not in ("nsubj", "nsubj:pass"):
         return False
     if m.gender not in ("fem", "masc"):
@@ -692,8 +692,8 @@ def _local_possessor(m: Mention, best: Mention, others: Sequence[Mention], cl: _
     """Gender-blind side: a possessive whose own form shows a gender ("his", "her") is read the way a reader
     of the target reads it where its clause offers two people. When the salient antecedent is the subject of
     a clause of the same sentence and every gendered word of its chain says the other gender, while the object
-    of that clause, standing between the subject and the possessive, could be meant ("She killed Dario Vell by
-    pressing his face"), the possessive is about the object. A chain that already mixes genders proves nothing
+    of that clause, standing between the subject and the possessive, could be meant ("She pinned Dario Vell down by
+    gripping his arm"), the possessive is about the object. A chain that already mixes genders proves nothing
     about the possessive and keeps it; so does an object whose chain shows the other gender too. Only the
     direct object competes: a person in a prepositional phrase or inside the subject ("Ortuño's wife ... made
     his first appearance") is no rival to the subject for a reader."""

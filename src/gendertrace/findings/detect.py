@@ -179,7 +179,7 @@ def detect_findings(
             if nominal is not None and _title_only(r):
                 # A title travels with the name by the string itself: only what the document says of the
                 # person in names and nouns judges it, never pronouns or zero subjects that the resolver
-                # attached ("Mr. Comey" is no error because a later "she" was put in his chain).
+                # attached ("Mr. Ordóñez" is no error because a later "she" was put in his chain).
                 n_ordered, n_source, n_verdict = nominal
                 by_name = _entity_verdict(r, e, n_ordered, n_source, n_verdict, reach, {}, None, certainty,
                                           None, min_confidence)

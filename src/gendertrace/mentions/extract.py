@@ -66,11 +66,14 @@ def _is_plural(tok: Token) -> bool:
     return tok.feat("Number") == "Plur"
 
 
-def _name_spans(parsed: ParsedText, known_names: set[str]) -> list[list[int]]:
-    """Runs of person-name tokens: NER persons, or proper-noun runs matching a name known from the other side."""
+def _name_spans(parsed: ParsedText, known_names: set[str],
+                speech_verbs: frozenset[str] = frozenset()) -> list[list[int]]:
+    """Runs of person-name tokens: NER persons, proper nouns the recogniser left unlabelled that are the subject
+    of a verb of saying ("Brannock said"), or proper-noun runs matching a name known from the other side."""
     spans: list[list[int]] = []
     run: list[int] = []
     toks = parsed.tokens
+    speakers = _unlabelled_speakers(parsed, speech_verbs)
 
     def close() -> None:
         if run:
@@ -78,7 +81,8 @@ def _name_spans(parsed: ParsedText, known_names: set[str]) -> list[list[int]]:
             run.clear()
 
     for t in toks:
-        is_name = t.ent == "PER" and (t.upos in ("PROPN", "NOUN", "X", "ADJ") or _capitalised_inside(parsed, t))
+        is_name = (t.ent == "PER" and (t.upos in ("PROPN", "NOUN", "X", "ADJ") or _capitalised_inside(parsed, t))
+                   or t.i in speakers)
         if is_name and run and toks[run[-1]].sent == t.sent and run[-1] == t.i - 1:
             run.append(t.i)
             continue
@@ -102,9 +106,25 @@ def _name_spans(parsed: ParsedText, known_names: set[str]) -> list[list[int]]:
     return sorted(spans)
 
 
+def _unlabelled_speakers(parsed: ParsedText, speech_verbs: frozenset[str]) -> set[int]:
+    """Proper nouns with no entity label that are the subject of a verb of saying, with the proper nouns of
+    their name: reporting verbs take people as subjects, and recognisers miss rare names more often than they
+    miss organisations and places, which they label."""
+    out: set[int] = set()
+    if not speech_verbs:
+        return out
+    for t in parsed.tokens:
+        if (t.upos == "PROPN" and not t.ent and t.deprel in ("nsubj", "nsubj:pass") and not t.is_root
+                and parsed.tokens[t.head].lemma.lower() in speech_verbs):
+            out.add(t.i)
+            out.update(k.i for k in parsed.children(t.i)
+                       if k.upos == "PROPN" and not k.ent and k.deprel in ("flat", "flat:name", "compound"))
+    return out
+
+
 def _capitalised_inside(parsed: ParsedText, t: Token) -> bool:
     """A capitalised word inside its sentence, after a word: where the recogniser calls it a person and the
-    tagger a pronoun or a conjunction ("que Vogt ne parlait pas"), the tagger has misread a name (such words
+    tagger a verb, a pronoun or a conjunction ("que Vogt ne parlait pas"), the tagger has misread a name (such words
     are capitalised only at the start; listed pronoun forms are kept out of names by the caller)."""
     if t.i == 0 or not t.text[:1].isupper():
         return False
@@ -143,7 +163,7 @@ def extract_mentions(
     # Names (not neopronouns the recogniser took for names: "Xe", "Ze").
     spans = [
         sp
-        for sp in _name_spans(parsed, known)
+        for sp in _name_spans(parsed, known, rules.speech_verbs)
         if not any(f.gender == "neutral" for i in sp for f in rules.pronoun(toks[i].text))
         and not any(toks[i].upos == "PRON" and rules.pronoun(toks[i].text) for i in sp)
     ]

@@ -76,6 +76,8 @@ class LanguageRules:
     # Subject pronouns that also stand for things ("la police ... a-t-elle ajouté"): a thing noun before them
     # competes with the person the resolver picks.
     thing_pronouns: frozenset[str] = frozenset()
+    # Verbs of saying (lemmas): an unlabelled proper noun as their subject is a person's name.
+    speech_verbs: frozenset[str] = frozenset()
     expletive_pronouns: frozenset[str] = frozenset()
     expletive_verbs: frozenset[str] = frozenset()
     expletive_clausal_verbs: frozenset[str] = frozenset()
@@ -160,6 +162,7 @@ TOP_KEYS = {
     "expletives",
     "role_markers",
     "thing_pronouns",
+    "speech_verbs",
     "neutral_language",
 }
 
@@ -338,6 +341,9 @@ def parse_rules(data: Any, path: Path) -> LanguageRules:
         ),
         thing_pronouns=frozenset(
             w.lower() for w in _str_list({"thing_pronouns": [], **data}, "thing_pronouns", path, "")
+        ),
+        speech_verbs=frozenset(
+            w.lower() for w in _str_list({"speech_verbs": [], **data}, "speech_verbs", path, "")
         ),
         expletive_pronouns=expl_lists["pronouns"],
         expletive_verbs=expl_lists["verbs"],
