@@ -164,3 +164,21 @@ def test_a_participle_with_a_subject_of_its_own_is_not_controlled():
     parsed = get_parser("fr").parse("Après que son frère est arrivé à Lyon, Claire Dumas a ouvert une librairie.")
     (claire,) = [m for m in extract_mentions(parsed, 0, "s1", "source", load_rules("fr")) if m.text == "Claire Dumas"]
     assert not any(mk.text == "arrivé" for mk in claire.marks)
+
+
+@pytest.mark.parametrize("lang, text, word, gender", [
+    ("fr", "Il a assuré que cette dernière serait retenue à Lyon.", "dernière", "fem"),
+    ("fr", "Elle a remercié ce dernier pour son aide.", "dernier", "masc"),
+    ("es", "Llamó a su hermana, y esta última le dijo que no.", "última", "fem"),
+])
+def test_the_latter_takes_up_a_referent_with_its_gender(lang, text, word, gender):
+    # Handbook grammar (from memory): "ce dernier", "esta última" (the latter) refer back like a pronoun, and
+    # their form shows the referent's grammatical gender (a person's gender when the referent is a person).
+    parsed = get_parser(lang).parse(text)
+    (latter,) = [m for m in extract_mentions(parsed, 0, "s1", "source", load_rules(lang)) if m.text == word]
+    assert latter.kind == "pronoun" and not latter.animate
+    assert (word, gender) in [(mk.text, mk.gender) for mk in latter.marks]
+
+
+def test_last_as_a_modifier_is_no_mention(french_mentions):
+    assert french_mentions("La dernière réunion a eu lieu hier.") == []

@@ -272,6 +272,17 @@ def extract_mentions(
             mark = _mark(side, seg, seg_id, t, "neutral", "morphology", W_LEXICAL, NEUTRAL_FORM_RULE)
             out.append(_noun_mention(prefix, side, seg, t, role, clause, t.text.lower(), [mark]))
             continue
+        # "cette dernière", "esta última" (the latter): a demonstrative's nominalised adjective takes up a
+        # referent like a pronoun that may also stand for a thing.
+        if _latter(parsed, t, rules):
+            role, clause = _role_and_clause(parsed, t.i)
+            marks = [_mark(side, seg, seg_id, t, t.gender, "pronoun", W_CLITIC, "demonstrative latter")]
+            marks += _predicate_marks(parsed, t.i, role, clause, rules, side, seg, seg_id, zero=False)
+            out.append(Mention(id=f"{prefix}{t.i}", side=side, seg=seg, head=t.i, tokens=(t.i,), kind="pronoun",
+                               text=t.text, start=t.start, end=t.end, number="sing", person="3",
+                               pron_type="personal", role=role, clause=clause, key=t.text.lower(),
+                               marks=tuple(marks), sent=t.sent, animate=False))
+            continue
         # Pronouns (not an article the tagger misread before a person noun).
         if t.i + 1 in noun_like and rules.article_gender(t.text) is not None:
             continue
@@ -533,6 +544,19 @@ def is_expletive(parsed: ParsedText, t: Token, rules: LanguageRules) -> bool:
     if rules.expletive_copular_clause and any(k.deprel == "cop" for k in kids) and head.upos == "ADJ":
         return clausal
     return False
+
+
+def _latter(parsed: ParsedText, t: Token, rules: LanguageRules) -> bool:
+    """A word of `latter_words` heading its own phrase (not modifying a noun) with a demonstrative determiner,
+    singular and with a gender: "cette dernière", "ce dernier", "esta última"."""
+    return (
+        t.text.lower() in rules.latter_words
+        and t.upos in ("ADJ", "NOUN", "PRON")
+        and not t.deprel.startswith(("amod", "det", "nmod", "compound"))
+        and t.gender in ("fem", "masc")
+        and not _is_plural(t)
+        and any(k.deprel == "det" and k.i < t.i and k.feat("PronType") == "Dem" for k in parsed.children(t.i))
+    )
 
 
 def _inverted_subject_of(parsed: ParsedText, t: Token) -> int:

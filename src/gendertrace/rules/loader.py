@@ -78,6 +78,8 @@ class LanguageRules:
     thing_pronouns: frozenset[str] = frozenset()
     # Verbs of saying (lemmas): an unlabelled proper noun as their subject is a person's name.
     speech_verbs: frozenset[str] = frozenset()
+    # Adjectives that, nominalised after a demonstrative, take up an earlier referent ("cette dernière").
+    latter_words: frozenset[str] = frozenset()
     expletive_pronouns: frozenset[str] = frozenset()
     expletive_verbs: frozenset[str] = frozenset()
     expletive_clausal_verbs: frozenset[str] = frozenset()
@@ -163,6 +165,7 @@ TOP_KEYS = {
     "role_markers",
     "thing_pronouns",
     "speech_verbs",
+    "latter_words",
     "neutral_language",
 }
 
@@ -344,6 +347,9 @@ def parse_rules(data: Any, path: Path) -> LanguageRules:
         ),
         speech_verbs=frozenset(
             w.lower() for w in _str_list({"speech_verbs": [], **data}, "speech_verbs", path, "")
+        ),
+        latter_words=frozenset(
+            w.lower() for w in _str_list({"latter_words": [], **data}, "latter_words", path, "")
         ),
         expletive_pronouns=expl_lists["pronouns"],
         expletive_verbs=expl_lists["verbs"],
