@@ -182,3 +182,15 @@ def test_the_latter_takes_up_a_referent_with_its_gender(lang, text, word, gender
 
 def test_last_as_a_modifier_is_no_mention(french_mentions):
     assert french_mentions("La dernière réunion a eu lieu hier.") == []
+
+
+def test_a_demonstrative_that_says_something_is_a_person():
+    # Things do not speak: "esta afirma" refers back to a person, and its form shows her gender.
+    parsed = get_parser("es").parse("Pero esta afirma que volverá a presentarse en mayo.")
+    (esta,) = [m for m in extract_mentions(parsed, 0, "s1", "source", load_rules("es")) if m.text == "esta"]
+    assert esta.animate and [(mk.text, mk.gender, mk.weight) for mk in esta.marks] == [("esta", "fem", 1.0)]
+
+
+def test_a_neuter_demonstrative_is_no_person():
+    parsed = get_parser("es").parse("Esto dice mucho de la empresa.")
+    assert extract_mentions(parsed, 0, "s1", "source", load_rules("es")) == []

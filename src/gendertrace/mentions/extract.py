@@ -273,15 +273,18 @@ def extract_mentions(
             out.append(_noun_mention(prefix, side, seg, t, role, clause, t.text.lower(), [mark]))
             continue
         # "cette dernière", "esta última" (the latter): a demonstrative's nominalised adjective takes up a
-        # referent like a pronoun that may also stand for a thing.
-        if _latter(parsed, t, rules):
+        # referent like a pronoun that may also stand for a thing. A demonstrative pronoun that says something
+        # ("pero esta dice que...") is a person.
+        speaker = _demonstrative_speaker(parsed, t, rules)
+        if speaker or _latter(parsed, t, rules):
             role, clause = _role_and_clause(parsed, t.i)
-            marks = [_mark(side, seg, seg_id, t, t.gender, "pronoun", W_CLITIC, "demonstrative latter")]
+            marks = [_mark(side, seg, seg_id, t, t.gender, "pronoun", W_PRONOUN if speaker else W_CLITIC,
+                           "demonstrative speaker" if speaker else "demonstrative latter")]
             marks += _predicate_marks(parsed, t.i, role, clause, rules, side, seg, seg_id, zero=False)
             out.append(Mention(id=f"{prefix}{t.i}", side=side, seg=seg, head=t.i, tokens=(t.i,), kind="pronoun",
                                text=t.text, start=t.start, end=t.end, number="sing", person="3",
                                pron_type="personal", role=role, clause=clause, key=t.text.lower(),
-                               marks=tuple(marks), sent=t.sent, animate=False))
+                               marks=tuple(marks), sent=t.sent, animate=speaker))
             continue
         # Pronouns (not an article the tagger misread before a person noun).
         if t.i + 1 in noun_like and rules.article_gender(t.text) is not None:
@@ -544,6 +547,20 @@ def is_expletive(parsed: ParsedText, t: Token, rules: LanguageRules) -> bool:
     if rules.expletive_copular_clause and any(k.deprel == "cop" for k in kids) and head.upos == "ADJ":
         return clausal
     return False
+
+
+def _demonstrative_speaker(parsed: ParsedText, t: Token, rules: LanguageRules) -> bool:
+    """A gendered singular demonstrative pronoun as the subject of a verb of saying ("esta dice", "questo ha
+    detto"): things do not speak, so it refers back to a person."""
+    return (
+        t.upos == "PRON"
+        and t.feat("PronType") == "Dem"
+        and t.gender in ("fem", "masc")
+        and not _is_plural(t)
+        and t.deprel in ("nsubj", "nsubj:pass")
+        and not t.is_root
+        and parsed.tokens[t.head].lemma.lower() in rules.speech_verbs
+    )
 
 
 def _latter(parsed: ParsedText, t: Token, rules: LanguageRules) -> bool:
