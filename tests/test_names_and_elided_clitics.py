@@ -196,3 +196,17 @@ def test_an_unlabelled_proper_noun_that_does_something_else_stays_unnamed():
     assert not parsed.tokens[0].ent, "precondition: the recogniser leaves the word unlabelled"
     names = [m.text for m in extract_mentions(parsed, 0, "s1", "source", load_rules("en")) if m.kind == "name"]
     assert names == []
+
+
+def test_a_bare_preposition_before_a_person_noun_is_no_article(tmp_path):
+    # Portuguese "promovido a presidente": "a" is the preposition (no article: a role after a verb of naming);
+    # it says nothing of the person's gender, and "presidente" stays a common-gender noun without evidence.
+    parsed = _parse(tmp_path, "pt", "Foi promovido a presidente .", _rows(
+        ("1", "Foi", "ser", "AUX", "Mood=Ind|Number=Sing|Person=3|VerbForm=Fin", "2", "aux:pass"),
+        ("2", "promovido", "promover", "VERB", "Gender=Masc|Number=Sing|VerbForm=Part", "0", "root"),
+        ("3", "a", "a", "ADP", "_", "4", "case"),
+        ("4", "presidente", "presidente", "NOUN", "Number=Sing", "2", "obl"),
+        ("5", ".", ".", "PUNCT", "_", "2", "punct"),
+    ))
+    (noun,) = [m for m in extract_mentions(parsed, 0, "s1", "source", load_rules("pt")) if m.text == "presidente"]
+    assert not any(mk.text == "a" for mk in noun.marks)

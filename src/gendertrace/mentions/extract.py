@@ -223,11 +223,11 @@ def extract_mentions(
         and (t.text.lower() not in rules.title_only or _as_title(t, toks))
         and (
             t.upos in ("NOUN", "PROPN")
-            or (t.i > 0 and rules.article_gender(toks[t.i - 1].text) is not None)
+            or (t.i > 0 and _article_form(toks[t.i - 1], rules) is not None)
             or (
                 t.i > 1
                 and toks[t.i - 1].upos == "ADJ"
-                and rules.article_gender(toks[t.i - 2].text) is not None
+                and _article_form(toks[t.i - 2], rules) is not None
             )
         )
     }
@@ -252,7 +252,7 @@ def extract_mentions(
             marks += _np_marks(parsed, t.i, rules, side, seg, seg_id, noun_form=True)
             if not any(mk.rule == "determiner agreement" for mk in marks) and t.i > 0:
                 before = toks[t.i - 1]
-                g = rules.article_gender(before.text)
+                g = _article_form(before, rules)
                 if g in ("fem", "masc"):
                     marks.append(
                         _mark(
@@ -620,6 +620,16 @@ def _gender_doublet(parsed: ParsedText, t: Token, rules: LanguageRules) -> bool:
         if theirs and not (theirs & mine) and None not in theirs:
             return True
     return False
+
+
+def _article_form(tok: Token, rules: LanguageRules) -> str | None:
+    """The gender of an article form, unless the tagger shows the word is a bare preposition of the same
+    shape (Portuguese "a": "promovido a presidente"); a preposition fused with an article keeps its gender."""
+    g = rules.article_gender(tok.text)
+    if g is not None and tok.upos == "ADP" and not (tok.feat("AdpType") == "Preppron"
+                                                     or tok.feat("PronType") == "Art"):
+        return None
+    return g
 
 
 def _noun_modifier(parsed: ParsedText, t: Token, rules: LanguageRules) -> bool:
