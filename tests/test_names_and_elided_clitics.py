@@ -20,14 +20,7 @@ from gendertrace.parse.base import get_parser
 from gendertrace.parse.conllu_backend import read_conllu
 from gendertrace.pipeline import _shared_unlabelled_names
 from gendertrace.rules import load_rules
-
-
-def _rows(*rows: tuple) -> str:
-    """Ten-column CoNLL-U word lines from (ID, FORM, LEMMA, UPOS, FEATS, HEAD, DEPREL[, MISC])."""
-    out = []
-    for tid, form, lemma, upos, feats, head, deprel, *misc in rows:
-        out.append("\t".join([tid, form, lemma, upos, "_", feats, head, deprel, "_", misc[0] if misc else "_"]))
-    return "\n".join(out) + "\n"
+from scoring_helpers import conllu_rows
 
 
 def _parse(tmp_path: Path, lang: str, text: str, rows: str):
@@ -40,7 +33,7 @@ def _parse(tmp_path: Path, lang: str, text: str, rows: str):
 @pytest.fixture()
 def pair(tmp_path):
     # Source without entity labels (as the treebanks come); target with a recogniser that found "Angel" only.
-    source = _parse(tmp_path, "es", "Dario Vell llamó a Angel desde Tarvel .", _rows(
+    source = _parse(tmp_path, "es", "Dario Vell llamó a Angel desde Tarvel .", conllu_rows(
         ("1", "Dario", "Dario", "PROPN", "_", "3", "nsubj"),
         ("2", "Vell", "Vell", "PROPN", "_", "1", "flat"),
         ("3", "llamó", "llamar", "VERB", "Number=Sing|Person=3", "0", "root"),
@@ -50,7 +43,7 @@ def pair(tmp_path):
         ("7", "Tarvel", "Tarvel", "PROPN", "_", "3", "obl"),
         ("8", ".", ".", "PUNCT", "_", "3", "punct"),
     ))
-    target = _parse(tmp_path, "en", "Dario Vell III called Angel from Tarvel Bay .", _rows(
+    target = _parse(tmp_path, "en", "Dario Vell III called Angel from Tarvel Bay .", conllu_rows(
         ("1", "Dario", "Dario", "PROPN", "_", "4", "compound"),
         ("2", "Vell", "Vell", "PROPN", "_", "4", "compound"),
         ("3", "III", "III", "PROPN", "_", "4", "nsubj"),
@@ -155,7 +148,7 @@ def test_a_fused_article_and_an_agreeing_determiner_show_the_nouns_gender():
 
 def test_a_bare_preposition_shaped_like_an_article_is_no_evidence(tmp_path):
     # Portuguese "ao" is "a" (preposition) + "o" (article); treebanks split it, and the "a" is no feminine article.
-    parsed = _parse(tmp_path, "pt", "Falou ao cliente .", _rows(
+    parsed = _parse(tmp_path, "pt", "Falou ao cliente .", conllu_rows(
         ("1", "Falou", "falar", "VERB", "Mood=Ind|Number=Sing|Person=3|VerbForm=Fin", "0", "root"),
         ("2-3", "ao", "_", "_", "_", "_", "_"),
         ("2", "a", "a", "ADP", "_", "4", "case"),
@@ -201,7 +194,7 @@ def test_an_unlabelled_proper_noun_that_does_something_else_stays_unnamed():
 def test_a_bare_preposition_before_a_person_noun_is_no_article(tmp_path):
     # Portuguese "promovido a presidente": "a" is the preposition (no article: a role after a verb of naming);
     # it says nothing of the person's gender, and "presidente" stays a common-gender noun without evidence.
-    parsed = _parse(tmp_path, "pt", "Foi promovido a presidente .", _rows(
+    parsed = _parse(tmp_path, "pt", "Foi promovido a presidente .", conllu_rows(
         ("1", "Foi", "ser", "AUX", "Mood=Ind|Number=Sing|Person=3|VerbForm=Fin", "2", "aux:pass"),
         ("2", "promovido", "promover", "VERB", "Gender=Masc|Number=Sing|VerbForm=Part", "0", "root"),
         ("3", "a", "a", "ADP", "_", "4", "case"),

@@ -14,6 +14,7 @@ from gendertrace.errors import InputError
 from gendertrace.model import ParsedText
 from gendertrace.parse.conllu_backend import ConlluParser, read_conllu
 from gendertrace.parse.labels import CLEAR_TO_UD, normalise_deprel, normalise_entity
+from scoring_helpers import conllu_rows
 
 # ----------------------------------------------------------------------------------------------------
 # Label normalisation
@@ -243,17 +244,6 @@ def test_spacy_features_use_ud_value_names(spacy_parsers, lang):
 
 # ----------------------------------------------------------------------------------------------------
 # CoNLL-U backend
-
-
-def conllu_rows(*rows: tuple) -> str:
-    """Ten-column CoNLL-U word lines from tuples (ID, FORM, LEMMA, UPOS, FEATS, HEAD, DEPREL[, MISC])."""
-    lines = []
-    for r in rows:
-        tid, form, lemma, upos, feats, head, deprel, *misc = r
-        lines.append(
-            "\t".join([tid, form, lemma, upos, "_", feats, head, deprel, "_", misc[0] if misc else "_"])
-        )
-    return "\n".join(lines) + "\n"
 
 
 def write(tmp_path: Path, name: str, content: str | bytes) -> Path:

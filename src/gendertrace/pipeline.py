@@ -261,7 +261,7 @@ def _shared_unlabelled_names(source: Sequence[ParsedText], target: Sequence[Pars
     if src_has == tgt_has:
         return set()  # both sides recognise names (or neither does): their labels decide
     out = set()
-    for s, t in zip(source, target):
+    for s, t in zip(source, target, strict=True):
         with_ner, bare = (s, t) if src_has else (t, s)
         bare_runs = [[name_key(x.text) for x in run] for run in _proper_runs(bare) if len(run) > 1]
         for run in _proper_runs(with_ner):
