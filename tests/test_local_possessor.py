@@ -48,3 +48,13 @@ def test_a_name_inside_the_subject_is_no_rival(es_en):
     result = score_pairs(es_en, [("La mujer de Ortuño, Irene Ortuño, hizo su primera aparición en la campaña.",
                                   "Ortuño's wife, Irene Ortuño, made his first appearance in the campaign.")])
     assert ("contradiction", "his", "fem") in _flags(result)
+
+
+def test_one_slip_in_the_subjects_chain_does_not_hand_the_possessive_back(es_en):
+    # The chain of "she" holds a wrong "He" (flagged itself); most of its words still say feminine, so "his"
+    # remains Tobías Erralde's.
+    result = score_pairs(es_en, [INTRO, ("Ella habló ayer con la prensa.", "He spoke to the press yesterday."),
+                                 ("Ella respondió a todas las preguntas.", "She answered every question."),
+                                 ("Después, ella felicitó a Tobías Erralde por su informe.",
+                                  "Afterwards, she congratulated Tobías Erralde on his report.")])
+    assert _flags(result) == [("contradiction", "He", "fem")]

@@ -691,19 +691,20 @@ def _thing_subject_before(m: Mention, best: Mention, ms: Sequence[Mention],
 def _local_possessor(m: Mention, best: Mention, others: Sequence[Mention], cl: _Clusters) -> Mention | None:
     """Gender-blind side: a possessive whose own form shows a gender ("his", "her") is read the way a reader
     of the target reads it where its clause offers two people. When the salient antecedent is the subject of
-    a clause of the same sentence and every gendered word of its chain says the other gender, while the object
-    of that clause, standing between the subject and the possessive, could be meant ("She pinned Dario Vell down by
-    gripping his arm"), the possessive is about the object. A chain that already mixes genders proves nothing
-    about the possessive and keeps it; so does an object whose chain shows the other gender too. Only the
-    direct object competes: a person in a prepositional phrase or inside the subject ("Ortuño's wife ... made
-    his first appearance") is no rival to the subject for a reader."""
+    a clause of the same sentence, its own form says the other gender and so do most gendered words of its
+    chain, while the object of that clause, standing between the subject and the possessive, could be meant
+    ("She pinned Dario Vell down by gripping his arm"), the possessive is about the object. A chain without
+    such a majority proves nothing about the possessive and keeps it; so does an object whose chain shows the
+    other gender too. Only the direct object competes: a person in a prepositional phrase or inside the
+    subject ("Ortuño's wife ... made his first appearance") is no rival to the subject for a reader."""
     if m.pron_type != "possessive" or m.gender not in ("fem", "masc"):
         return None
     if (best.seg != m.seg or best.sent != m.sent or _order(best) > _order(m)
             or best.role not in ("nsubj", "nsubj:pass") or best.clause < 0):
         return None
     other_gender = "masc" if m.gender == "fem" else "fem"
-    if _genders(cl.members(best.id)) != {other_gender}:
+    said = [mk.gender for x in cl.members(best.id) for mk in x.marks]
+    if best.gender != other_gender or said.count(other_gender) <= said.count(m.gender):
         return None
     fitting = [
         c for c in others
