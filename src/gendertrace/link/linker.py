@@ -53,6 +53,11 @@ def link_mentions(
             if key not in subject_of or subject_of[key].kind == "zero":
                 subject_of[key] = m
     src_names = [m for m in src_mentions if m.kind == "name"]
+    src_by_id = {m.id: m for m in src_mentions}
+    tgt_subjects: dict[tuple[int, int], list[Mention]] = {}
+    for m in tgt_mentions:
+        if m.role in SUBJECTS and m.pron_type != "possessive" and m.clause >= 0:
+            tgt_subjects.setdefault((m.seg, m.clause if m.kind != "zero" else m.head), []).append(m)
     chain = src_res.chain_of
     links: dict[str, Link] = {}
 
@@ -85,8 +90,24 @@ def link_mentions(
             hits = {chain[v.id] for v in via}
             if len(hits) == 1:
                 link = Link(m.id, hits.pop(), "alignment", CONF_ALIGNED, min(via, key=lambda v: v.start).id)
-        if link is None and (m.role in SUBJECTS or m.kind == "zero") and m.pron_type != "possessive":
+        subject = (m.role in SUBJECTS or m.kind == "zero") and m.pron_type != "possessive"
+        if link is None and subject:
             link = _projected(m, tgt_parses[m.seg], src_parses[m.seg], aligned_sources, subject_of, chain)
+        elif link is not None and subject and m.kind == "pronoun" and m.gender is not None:
+            # A word aligner pairs pronouns by their forms, so a subject pronoun of the wrong gender tends to be
+            # paired with a source pronoun of its own gender elsewhere in the sentence ("he assured that she
+            # ..." / "él aseguró que él..."). Where the source pronoun it was paired with has its gender, is the
+            # subject of a clause whose translation has a subject of its own, and is the subject of none of the
+            # source clauses aligned to the pronoun's clause, which have one subject, the clause structure decides.
+            via_m = src_by_id[link.via]
+            if (via_m.gender == m.gender and via_m.kind == "pronoun"
+                    and _translated_with_other_subject(via_m, m, src_parses[m.seg], tgt_subjects, alignments)):
+                subjects = _aligned_subjects(m, tgt_parses[m.seg], src_parses[m.seg], aligned_sources,
+                                             subject_of, chain)
+                if via_m not in subjects.values() and len(subjects) == 1:
+                    ((cid, subj),) = subjects.items()
+                    if cid != link.source_chain:
+                        link = Link(m.id, cid, "projection", CONF_PROJECTED, subj.id)
         if link is not None:
             # A link through a source pronoun is only as sure as that pronoun's place in its chain.
             sure = src_res.certainty.get(link.via, 1.0)
@@ -134,11 +155,23 @@ def _name_link(m: Mention, src_names: Sequence[Mention], chain: dict[str, str]) 
     return None
 
 
-def _projected(m, tgt_parsed, src_parsed, aligned_sources, subject_of, chain) -> Link | None:
-    """Subject-verb projection: the target clause's aligned source clause, and that clause's subject."""
+def _translated_with_other_subject(via: Mention, m: Mention, src_parsed: ParsedText,
+                                   tgt_subjects: dict[tuple[int, int], list[Mention]], alignments) -> bool:
+    """Whether the clause the source subject `via` belongs to is aligned to a target clause whose subject is a
+    mention other than `m`: then `via` is that subject's counterpart, and `m` only shares its form."""
+    if via.clause < 0 or via.role not in SUBJECTS:
+        return False
+    al = alignments[m.seg] if m.seg < len(alignments) else frozenset()
+    verbs = {via.clause} | {k.i for k in src_parsed.children(via.clause) if k.deprel in CLAUSE_FUNCTION_RELS}
+    targets = {j for i, j in al if i in verbs}
+    return any(o is not m for j in targets for o in tgt_subjects.get((m.seg, j), ()))
+
+
+def _aligned_subjects(m, tgt_parsed, src_parsed, aligned_sources, subject_of, chain) -> dict[str, Mention]:
+    """The subjects of the source clauses aligned to the target mention's clause, by source chain."""
     clause = m.clause if m.kind != "zero" else m.head
     if clause < 0:
-        return None
+        return {}
     verbs = [clause] + [k.i for k in tgt_parsed.children(clause) if k.deprel in CLAUSE_FUNCTION_RELS]
     if m.kind == "zero":
         verbs += list(m.tokens)
@@ -147,6 +180,12 @@ def _projected(m, tgt_parsed, src_parsed, aligned_sources, subject_of, chain) ->
         subj = subject_of.get((m.seg, _clause_of(src_parsed, i)))
         if subj is not None:
             subjects[chain[subj.id]] = subj
+    return subjects
+
+
+def _projected(m, tgt_parsed, src_parsed, aligned_sources, subject_of, chain) -> Link | None:
+    """Subject-verb projection: the target clause's aligned source clause, and that clause's subject."""
+    subjects = _aligned_subjects(m, tgt_parsed, src_parsed, aligned_sources, subject_of, chain)
     if len(subjects) == 1:
         ((cid, subj),) = subjects.items()
         return Link(m.id, cid, "projection", CONF_PROJECTED, subj.id)
