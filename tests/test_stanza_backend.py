@@ -17,6 +17,7 @@ from gendertrace.errors import ModelError
 from gendertrace.parse import get_parser
 from gendertrace.parse.conllu_backend import read_conllu
 from gendertrace.parse.stanza_backend import StanzaParser, stanza_doc_to_parsed
+from scoring_helpers import conllu_rows as rows
 
 SKIP_REASON = "stanza is not installed (optional extra: pip install 'gendertrace[stanza]')"
 
@@ -27,17 +28,6 @@ def conll():
     from stanza.utils.conll import CoNLL
 
     return CoNLL
-
-
-def rows(*word_rows: tuple) -> str:
-    """Ten-column CoNLL-U lines from (ID, FORM, LEMMA, UPOS, FEATS, HEAD, DEPREL[, MISC])."""
-    out = []
-    for r in word_rows:
-        tid, form, lemma, upos, feats, head, deprel, *misc = r
-        out.append(
-            "\t".join([tid, form, lemma, upos, "_", feats, head, deprel, "_", misc[0] if misc else "_"])
-        )
-    return "\n".join(out) + "\n"
 
 
 # Invented sentences. Spanish with the contraction del = de + el, French with au = à + le.
