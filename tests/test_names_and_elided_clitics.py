@@ -61,21 +61,24 @@ def test_a_proper_noun_run_on_both_sides_that_no_recogniser_labelled_is_a_name(p
     source, target = pair
     # "Dario Vell" stands in both; "III" is a numeral the two taggers treat differently. "Tarvel" is one word on
     # the source side: a single proper noun is too weak a sign.
-    assert _shared_unlabelled_names([source], [target]) == {"dario vell", "dario", "vell"}
+    # Both sides are read from CoNLL-U here (no recogniser); the target's one entity label marks it as labelled.
+    assert _shared_unlabelled_names([source], [target], False, False) == {"dario vell", "dario", "vell"}
 
 
 def test_a_run_the_recogniser_labelled_otherwise_is_no_name(pair):
     source, target = pair
     place = replace(target, tokens=tuple(replace(t, ent="LOC") if t.text in ("Dario", "Vell", "III") else t
                                          for t in target.tokens))
-    assert _shared_unlabelled_names([source], [place]) == set()
+    assert _shared_unlabelled_names([source], [place], False, False) == set()
 
 
 def test_sides_that_both_recognise_names_keep_their_own_labels(pair):
     source, target = pair
     labelled = replace(source, tokens=tuple(replace(t, ent="PER") if t.text == "Angel" else t
                                             for t in source.tokens))
-    assert _shared_unlabelled_names([labelled], [target]) == set()
+    assert _shared_unlabelled_names([labelled], [target], False, False) == set()
+    # A side whose parser runs a recogniser counts as labelled even where this document has no entity at all.
+    assert _shared_unlabelled_names([source], [target], True, True) == set()
 
 
 @pytest.mark.slow

@@ -161,7 +161,8 @@ class Scorer:
         seg_ids = [s.seg_id for s in doc.segments]
         src_names = _person_names(pd.source)
         tgt_names = _person_names(pd.target)
-        shared = _shared_unlabelled_names(pd.source, pd.target)
+        shared = _shared_unlabelled_names(pd.source, pd.target, _recognises(self.src_parser),
+                                          _recognises(self.tgt_parser))
         src_names |= shared
         tgt_names |= shared
         sheet = self.settings.entity_sheet
@@ -249,15 +250,22 @@ def _proper_runs(parsed: ParsedText) -> list[list]:
     return runs
 
 
-def _shared_unlabelled_names(source: Sequence[ParsedText], target: Sequence[ParsedText]) -> set[str]:
+def _recognises(parser) -> bool:
+    """Whether a parser runs a named-entity recogniser (pre-parsed CoNLL-U input does not)."""
+    return not parser.signature().startswith("conllu")
+
+
+def _shared_unlabelled_names(source: Sequence[ParsedText], target: Sequence[ParsedText],
+                             src_recognises: bool = True, tgt_recognises: bool = True) -> set[str]:
     """Where one side comes without a named-entity recogniser (CoNLL-U input without entity labels), a run of
     two or more proper nouns that stands word for word in both sides of a segment pair and that the other side's
     recogniser labels as nothing (no place, no organisation) is taken for a person's name, and so are its words:
-    recognisers miss rare names ("Dario Vell III") more often than they miss places and organisations."""
-    def labelled(parses: Sequence[ParsedText]) -> bool:
-        return any(t.ent for p in parses for t in p.tokens)
+    recognisers miss rare names ("Dario Vell III") more often than they miss places and organisations. A side
+    has labels where its parser recognises names or its input carries any entity label."""
+    def labelled(parses: Sequence[ParsedText], recognises: bool) -> bool:
+        return recognises or any(t.ent for p in parses for t in p.tokens)
 
-    src_has, tgt_has = labelled(source), labelled(target)
+    src_has, tgt_has = labelled(source, src_recognises), labelled(target, tgt_recognises)
     if src_has == tgt_has:
         return set()  # both sides recognise names (or neither does): their labels decide
     out = set()
