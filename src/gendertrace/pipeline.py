@@ -4,6 +4,7 @@ from __future__ import annotations
 
 from collections.abc import Callable, Iterable, Iterator, Sequence
 from dataclasses import dataclass, field, replace
+from functools import cached_property
 
 from gendertrace import __version__
 from gendertrace.coref.sieves import resolve_chains
@@ -155,14 +156,18 @@ class Scorer:
             if progress:
                 progress(1)
 
+    @cached_property
+    def _recognisers(self) -> tuple[bool, bool]:
+        """Whether the source and the target parser run a named-entity recogniser (asked once)."""
+        return _recognises(self.src_parser), _recognises(self.tgt_parser)
+
     def score_parsed(self, pd: ParsedDocument, alignments) -> DocumentResult:
         """Score one parsed document given its per-segment word alignments."""
         doc = pd.document
         seg_ids = [s.seg_id for s in doc.segments]
         src_names = _person_names(pd.source)
         tgt_names = _person_names(pd.target)
-        shared = _shared_unlabelled_names(pd.source, pd.target, _recognises(self.src_parser),
-                                          _recognises(self.tgt_parser))
+        shared = _shared_unlabelled_names(pd.source, pd.target, *self._recognisers)
         src_names |= shared
         tgt_names |= shared
         sheet = self.settings.entity_sheet
@@ -204,8 +209,11 @@ class Scorer:
 def _chains_with_singular_they(mentions, parses, side, use_gender, rules):
     """Chains of one side; a 'they' stays a mention (of one person, neutral) only where its chain shows a
     singular antecedent, else it is plural they and leaves the chains are resolved again without it."""
-    res = resolve_chains(mentions, parses, side, use_gender=use_gender, role_markers=rules.role_markers,
-                         thing_pronouns=rules.thing_pronouns)
+    def resolve(ms):
+        return resolve_chains(ms, parses, side, use_gender=use_gender, role_markers=rules.role_markers,
+                              thing_pronouns=rules.thing_pronouns)
+
+    res = resolve(mentions)
     candidates = [m for m in mentions if any(mk.rule == SINGULAR_THEY_RULE for mk in m.marks)]
     if not candidates:
         return mentions, res
@@ -217,8 +225,7 @@ def _chains_with_singular_they(mentions, parses, side, use_gender, rules):
     if not drop:
         return mentions, res
     kept = [m for m in mentions if m.id not in drop]
-    return kept, resolve_chains(kept, parses, side, use_gender=use_gender, role_markers=rules.role_markers,
-                                thing_pronouns=rules.thing_pronouns)
+    return kept, resolve(kept)
 
 
 def _person_names(parses: Sequence[ParsedText]) -> set[str]:

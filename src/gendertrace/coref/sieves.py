@@ -102,6 +102,7 @@ def resolve_chains(
     certainty: dict[str, float] = {}
     antecedent: dict[str, str] = {}
     read_by_form: set[str] = set()
+    mention_tokens = {(x.seg, t) for x in ms for t in x.tokens}  # words that are some person's mention
 
     apart = _contained_pairs(ms, parses) | _disjoint_arguments(ms, parses)
 
@@ -275,7 +276,7 @@ def resolve_chains(
             # and so does a thing the pronoun may stand for.
             far = min(m.seg - best.seg, len(DISTANCE_CERTAINTY) - 1)
             sure = ALTERNATIVE_CERTAINTY if alternatives else 1.0
-            if m.key in thing_pronouns and _thing_subject_before(m, best, ms, parses):
+            if m.key in thing_pronouns and _thing_subject_before(m, best, mention_tokens, parses):
                 sure = min(sure, THING_CERTAINTY)
             certainty[m.id] = sure * DISTANCE_CERTAINTY[far]
 
@@ -666,7 +667,7 @@ def _pick_antecedent(m, ms, cl, parses, use_gender):
     return best, alternatives, [c for _, c in ranked[1:]]
 
 
-def _thing_subject_before(m: Mention, best: Mention, ms: Sequence[Mention],
+def _thing_subject_before(m: Mention, best: Mention, mention_tokens: set[tuple[int, int]],
                           parses: Sequence[ParsedText]) -> bool:
     """Whether a subject pronoun that also stands for things has a thing noun as a subject that agrees with it
     in gender and number in its own segment before it or in the segment before, no further back than the
@@ -675,7 +676,6 @@ def _thing_subject_before(m: Mention, best: Mention, ms: Sequence[Mention],
         return False
     if m.gender not in ("fem", "masc"):
         return False
-    heads = {(x.seg, t) for x in ms for t in x.tokens}
     for seg in (m.seg, m.seg - 1):
         if seg < 0 or seg < best.seg:
             continue
@@ -683,7 +683,7 @@ def _thing_subject_before(m: Mention, best: Mention, ms: Sequence[Mention],
             if seg == m.seg and t.i >= m.head:
                 break
             if (t.upos == "NOUN" and t.deprel in ("nsubj", "nsubj:pass") and t.gender == m.gender
-                    and t.feat("Number") == "Sing" and (seg, t.i) not in heads):
+                    and t.feat("Number") == "Sing" and (seg, t.i) not in mention_tokens):
                 return True
     return False
 

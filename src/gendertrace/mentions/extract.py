@@ -789,12 +789,11 @@ def _np_marks(parsed, head, rules, side, seg, seg_id, noun_form: bool) -> list[E
         return []
     marks = []
     for c in parsed.children(head):
-        if c.deprel == "case" and c.i < head and not _is_plural(c) and (g := rules.article_gender(c.text)):
+        if c.deprel == "case" and c.i < head and not _is_plural(c) and rules.article_gender(c.text):
             # A preposition fused with the article ("del propio director", "au directeur") carries its gender;
-            # the tagger shows the fusion (UD AdpType=Preppron, or the article's features on the word), which
-            # tells it from a bare preposition of the same form (Portuguese "a").
-            fused = c.feat("AdpType") == "Preppron" or c.feat("PronType") == "Art"
-            if g in ("fem", "masc") and c.upos == "ADP" and fused:
+            # a bare preposition of the same form (Portuguese "a") does not (see _article_form).
+            g = _article_form(c, rules)
+            if g in ("fem", "masc") and c.upos == "ADP":
                 marks.append(_mark(side, seg, seg_id, c, g, "morphology", W_DETERMINER, "determiner agreement"))
             continue
         if c.deprel not in rules.dependents or _is_plural(c):

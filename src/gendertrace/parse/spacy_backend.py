@@ -73,6 +73,7 @@ def pipeline_folder(name: str) -> Path | None:
     return Path(folders[0]) if folders else None
 
 
+@lru_cache(maxsize=16)
 def needs_torch(name: str) -> bool:
     """Whether pipeline `name` may run on PyTorch. False only where the installed package shows it does not:
     its meta.json requires nothing besides spaCy and every model its config builds (`@architectures`,
