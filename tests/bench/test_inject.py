@@ -655,6 +655,39 @@ def test_a_person_noun_beside_a_pronoun_of_the_other_gender_is_ambiguous(treeban
     assert not he.evidenced and "'father'" in he.evidence_note
 
 
+# Even splits: the only evidence is one other target word (invented sentences; the pro-drop source of
+# "Firmó." / "Pagó." shows no gender, a handbook fact of Spanish verb morphology, from memory).
+SHE_SIGNED = ("She signed.", f"1 She PRON {SHE} 2 nsubj\n2 signed VERB _ 0 root\n3 . PUNCT _ 2 punct")
+SHE_PAID = ("She paid.", f"1 She PRON {SHE} 2 nsubj\n2 paid VERB _ 0 root\n3 . PUNCT _ 2 punct")
+FIRMO = ("Firmó.", "1 Firmó VERB Number=Sing|Person=3 0 root\n2 . PUNCT _ 1 punct")
+PAGO = ("Pagó.", "1 Pagó VERB Number=Sing|Person=3 0 root\n2 . PUNCT _ 1 punct")
+
+
+def test_one_other_target_word_and_a_silent_source_is_an_even_split(treebanks):
+    doc = make_doc(treebanks, "es", "en", [(FIRMO, SHE_SIGNED), (PAGO, SHE_PAID)])
+    copies = inject_document(doc, "en", EN)
+    assert [c.new_text for c in copies] == ["He", "He"]
+    assert all(c.evidenced and c.even_split for c in copies)
+
+
+def test_a_gendered_source_word_breaks_the_split(treebanks):
+    ella_firmo = ("Ella firmó.", f"1 Ella PRON {STRONG_F} 2 nsubj\n2 firmó VERB _ 0 root\n3 . PUNCT _ 2 punct")
+    doc = make_doc(treebanks, "es", "en", [(ella_firmo, SHE_SIGNED), (PAGO, SHE_PAID)])
+    assert [(c.evidenced, c.even_split) for c in inject_document(doc, "en", EN)] == [(True, False)] * 2
+
+
+def test_two_other_target_words_are_a_majority_not_a_split(treebanks):
+    she_left = ("She left.", f"1 She PRON {SHE} 2 nsubj\n2 left VERB _ 0 root\n3 . PUNCT _ 2 punct")
+    doc = make_doc(treebanks, "es", "en", [(FIRMO, SHE_SIGNED), (PAGO, SHE_PAID), (NEUTRAL["es"], she_left)])
+    copies = inject_document(doc, "en", EN)
+    assert len(copies) == 3 and not any(c.even_split for c in copies)
+
+
+def test_an_unevidenced_copy_is_no_split(treebanks):
+    copy = only(inject_document(make_doc(treebanks, "es", "en", [(FIRMO, SHE_SIGNED)]), "en", EN))
+    assert not copy.evidenced and not copy.even_split
+
+
 # ------------------------------------------------------------------------------------------------------------
 # Reproducibility and the corpus helpers
 

@@ -71,6 +71,13 @@ target sentence and every other sentence of the document on both sides are searc
 `evidence_note` names the first person word found, or says why none counts. The approximation is plain: any
 person of the original gender in the document counts as the same person, and anchoring through an English
 pronoun assumes the aligned pronoun and the word refer to the same person.
+
+An evidenced copy is an `even_split` when that evidence is a single target word: the source holds no person word
+of the original gender in any sentence, and the target exactly one besides the flipped words. After the injection
+the document then says each gender once of what the rule takes to be one person ("She signed the lease. Then he
+paid the deposit." over two zero subjects in the source), so no reading of the document can tell which of the two
+words is the error: a checker that flags both catches the error at the price of a false finding, and one that
+flags either catches it half the time. The benchmark reports these copies apart.
 """
 
 from __future__ import annotations
@@ -146,6 +153,7 @@ class InjectedCopy:
     kind: str  # "pronoun" or "det-noun"
     evidenced: bool
     evidence_note: str
+    even_split: bool = False
 
 
 @dataclass(frozen=True)
@@ -570,6 +578,18 @@ def _evidence(site: _Site, words: list[tuple[list[PersonWord], list[PersonWord]]
     return False, f"no other {gender} person word in the document"
 
 
+def _even_split(site: _Site, words: list[tuple[list[PersonWord], list[PersonWord]]]) -> bool:
+    """Whether the document's only person word of the site's original gender, besides the flipped words, is one
+    target word, with none in the source. After the injection that word and the injected one are one against
+    one, and nothing in the document says which of the two is wrong (module docstring)."""
+    gender, flipped = site.original_gender, set(site.tokens)
+    if any(w.gender == gender for src, _ in words for w in src):
+        return False
+    rest = [w for k, (_, tgt) in enumerate(words) for w in tgt
+            if w.gender == gender and not (k == site.sentence and flipped.intersection(w.tokens))]
+    return len(rest) == 1
+
+
 def _sites(doc: PudDocument, tgt_lang: str, rules: Any) -> list[_Site]:
     sites: list[_Site] = []
     for k, pair in enumerate(doc.pairs):
@@ -613,6 +633,7 @@ def inject_document(
         old = texts[site.sentence]
         new_sentence = old[: site.orig_start] + site.replacement + old[site.orig_end :]
         evidenced, note = _evidence(site, words)
+        split = evidenced and _even_split(site, words)
         out.append(
             InjectedCopy(
                 doc_id=doc.doc_id,
@@ -631,6 +652,7 @@ def inject_document(
                 kind=site.kind,
                 evidenced=evidenced,
                 evidence_note=note,
+                even_split=split,
             )
         )
     return out
