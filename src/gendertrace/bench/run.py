@@ -285,10 +285,10 @@ def run_benchmark(
         "An evidenced copy is an *even split* when its only evidence is one other target word: the source holds no",
         "person word of the original gender, and the target one besides the flipped word, so after the injection the",
         "document says each gender once and nothing in it tells which word is wrong (`InjectedCopy.even_split`,",
-        "judged from the gold annotation). A checker catches such an error only by flagging both words, which puts",
-        "a false finding beside every catch. The last two columns leave these copies out.",
+        "judged from the gold annotation). A checker is sure to catch such an error only by flagging both words, which",
+        "puts a false finding beside every catch. The last two columns leave these copies out.",
         "",
-        "| direction | evidenced | even splits | caught | their findings on the error / all | recall (evidenced, "
+        "| direction | evidenced | even splits | caught | findings in them: on the error / all | recall (evidenced, "
         "the rest) | precision (the rest) |",
         "|---|---:|---:|---:|---:|---:|---:|",
     ]
