@@ -2,8 +2,11 @@
 
 from __future__ import annotations
 
+from pathlib import Path
+
 from gendertrace import Scorer
-from gendertrace.model import Document, DocumentResult, Segment
+from gendertrace.model import Document, DocumentResult, ParsedText, Segment
+from gendertrace.parse.conllu_backend import read_conllu
 
 
 def score_pairs(scorer: Scorer, pairs) -> DocumentResult:
@@ -27,3 +30,11 @@ def conllu_rows(*rows: tuple) -> str:
             "\t".join([tid, form, lemma, upos, "_", feats, head, deprel, "_", misc[0] if misc else "_"])
         )
     return "\n".join(lines) + "\n"
+
+
+def conllu_parsed(tmp_path: Path, lang: str, text: str, rows: str) -> ParsedText:
+    """One sentence written as CoNLL-U (`rows` as from `conllu_rows`) into tmp_path and read back."""
+    path = tmp_path / f"{lang}.conllu"
+    path.write_text(f"# sent_id = s1\n# text = {text}\n{rows}\n", encoding="utf-8")
+    (sent,) = read_conllu(path, lang)
+    return sent.parsed

@@ -11,44 +11,35 @@ memory).
 from __future__ import annotations
 
 from dataclasses import replace
-from pathlib import Path
 
 import pytest
 
 from gendertrace.mentions.extract import extract_mentions
 from gendertrace.parse.base import get_parser
-from gendertrace.parse.conllu_backend import read_conllu
 from gendertrace.pipeline import _shared_unlabelled_names
 from gendertrace.rules import load_rules
-from scoring_helpers import conllu_rows
-
-
-def _parse(tmp_path: Path, lang: str, text: str, rows: str):
-    path = tmp_path / f"{lang}.conllu"
-    path.write_text(f"# sent_id = s1\n# text = {text}\n{rows}\n", encoding="utf-8")
-    (sent,) = read_conllu(path, lang)
-    return sent.parsed
+from scoring_helpers import conllu_parsed, conllu_rows
 
 
 @pytest.fixture()
 def pair(tmp_path):
-    # Source without entity labels (as the treebanks come); target with a recogniser that found "Angel" only.
-    source = _parse(tmp_path, "es", "Dario Vell llamó a Angel desde Tarvel .", conllu_rows(
+    # Source without entity labels (as the treebanks come); target with a recogniser that found "Odile" only.
+    source = conllu_parsed(tmp_path, "es", "Dario Vell llamó a Odile desde Tarvel .", conllu_rows(
         ("1", "Dario", "Dario", "PROPN", "_", "3", "nsubj"),
         ("2", "Vell", "Vell", "PROPN", "_", "1", "flat"),
         ("3", "llamó", "llamar", "VERB", "Number=Sing|Person=3", "0", "root"),
         ("4", "a", "a", "ADP", "_", "5", "case"),
-        ("5", "Angel", "Angel", "PROPN", "_", "3", "obj"),
+        ("5", "Odile", "Odile", "PROPN", "_", "3", "obj"),
         ("6", "desde", "desde", "ADP", "_", "7", "case"),
         ("7", "Tarvel", "Tarvel", "PROPN", "_", "3", "obl"),
         ("8", ".", ".", "PUNCT", "_", "3", "punct"),
     ))
-    target = _parse(tmp_path, "en", "Dario Vell III called Angel from Tarvel Bay .", conllu_rows(
+    target = conllu_parsed(tmp_path, "en", "Dario Vell III called Odile from Tarvel Bay .", conllu_rows(
         ("1", "Dario", "Dario", "PROPN", "_", "4", "compound"),
         ("2", "Vell", "Vell", "PROPN", "_", "4", "compound"),
         ("3", "III", "III", "PROPN", "_", "4", "nsubj"),
         ("4", "called", "call", "VERB", "_", "0", "root"),
-        ("5", "Angel", "Angel", "PROPN", "_", "4", "obj", "NE=PER"),
+        ("5", "Odile", "Odile", "PROPN", "_", "4", "obj", "NE=PER"),
         ("6", "from", "from", "ADP", "_", "8", "case"),
         ("7", "Tarvel", "Tarvel", "PROPN", "_", "8", "compound"),
         ("8", "Bay", "Bay", "PROPN", "_", "4", "obl"),
@@ -74,7 +65,7 @@ def test_a_run_the_recogniser_labelled_otherwise_is_no_name(pair):
 
 def test_sides_that_both_recognise_names_keep_their_own_labels(pair):
     source, target = pair
-    labelled = replace(source, tokens=tuple(replace(t, ent="PER") if t.text == "Angel" else t
+    labelled = replace(source, tokens=tuple(replace(t, ent="PER") if t.text == "Odile" else t
                                             for t in source.tokens))
     assert _shared_unlabelled_names([labelled], [target], False, False) == set()
     # A side whose parser runs a recogniser counts as labelled even where this document has no entity at all.
@@ -151,7 +142,7 @@ def test_a_fused_article_and_an_agreeing_determiner_show_the_nouns_gender():
 
 def test_a_bare_preposition_shaped_like_an_article_is_no_evidence(tmp_path):
     # Portuguese "ao" is "a" (preposition) + "o" (article); treebanks split it, and the "a" is no feminine article.
-    parsed = _parse(tmp_path, "pt", "Falou ao cliente .", conllu_rows(
+    parsed = conllu_parsed(tmp_path, "pt", "Falou ao cliente .", conllu_rows(
         ("1", "Falou", "falar", "VERB", "Mood=Ind|Number=Sing|Person=3|VerbForm=Fin", "0", "root"),
         ("2-3", "ao", "_", "_", "_", "_", "_"),
         ("2", "a", "a", "ADP", "_", "4", "case"),
@@ -197,7 +188,7 @@ def test_an_unlabelled_proper_noun_that_does_something_else_stays_unnamed():
 def test_a_bare_preposition_before_a_person_noun_is_no_article(tmp_path):
     # Portuguese "promovido a presidente": "a" is the preposition (no article: a role after a verb of naming);
     # it says nothing of the person's gender, and "presidente" stays a common-gender noun without evidence.
-    parsed = _parse(tmp_path, "pt", "Foi promovido a presidente .", conllu_rows(
+    parsed = conllu_parsed(tmp_path, "pt", "Foi promovido a presidente .", conllu_rows(
         ("1", "Foi", "ser", "AUX", "Mood=Ind|Number=Sing|Person=3|VerbForm=Fin", "2", "aux:pass"),
         ("2", "promovido", "promover", "VERB", "Gender=Masc|Number=Sing|VerbForm=Part", "0", "root"),
         ("3", "a", "a", "ADP", "_", "4", "case"),

@@ -13,8 +13,8 @@ import pytest
 import yaml
 
 from gendertrace.mentions.extract import extract_mentions
-from gendertrace.parse.conllu_backend import read_conllu
 from gendertrace.rules import load_lexicon, load_rules, rules_dir
+from scoring_helpers import conllu_parsed, conllu_rows
 
 LANGS = ("de", "it", "pt")
 
@@ -288,14 +288,7 @@ def test_lexicons_map_known_pairs():
 
 def parse(tmp_path: Path, lang: str, text: str, rows: str):
     """One sentence from rows "ID FORM LEMMA UPOS FEATS HEAD DEPREL"."""
-    lines = ["# sent_id = t1", f"# text = {text}"]
-    for row in rows.strip().splitlines():
-        tid, form, lemma, upos, feats, head, deprel = row.split()
-        lines.append("\t".join([tid, form, lemma, upos, "_", feats, head, deprel, "_", "_"]))
-    path = tmp_path / f"{lang}.conllu"
-    path.write_text("\n".join(lines) + "\n\n", encoding="utf-8")
-    (sent,) = read_conllu(path, lang)
-    return sent.parsed
+    return conllu_parsed(tmp_path, lang, text, conllu_rows(*(row.split() for row in rows.strip().splitlines())))
 
 
 def mentions(parsed, lang):

@@ -151,6 +151,11 @@ def _str_list(data: dict, key: str, path: Path, where: str) -> list[str]:
     return value
 
 
+def _optional_words(data: dict, key: str, path: Path) -> frozenset[str]:
+    """An optional top-level list of words, lower-cased (empty where the file leaves the key out)."""
+    return frozenset(w.lower() for w in _str_list({key: [], **data}, key, path, ""))
+
+
 TOP_KEYS = {
     "language",
     "name",
@@ -339,18 +344,10 @@ def parse_rules(data: Any, path: Path) -> LanguageRules:
         endings=tuple(endings),
         generic_masculine=generic,
         title_only=title_only,
-        role_markers=frozenset(
-            w.lower() for w in _str_list({"role_markers": [], **data}, "role_markers", path, "")
-        ),
-        thing_pronouns=frozenset(
-            w.lower() for w in _str_list({"thing_pronouns": [], **data}, "thing_pronouns", path, "")
-        ),
-        speech_verbs=frozenset(
-            w.lower() for w in _str_list({"speech_verbs": [], **data}, "speech_verbs", path, "")
-        ),
-        latter_words=frozenset(
-            w.lower() for w in _str_list({"latter_words": [], **data}, "latter_words", path, "")
-        ),
+        role_markers=_optional_words(data, "role_markers", path),
+        thing_pronouns=_optional_words(data, "thing_pronouns", path),
+        speech_verbs=_optional_words(data, "speech_verbs", path),
+        latter_words=_optional_words(data, "latter_words", path),
         expletive_pronouns=expl_lists["pronouns"],
         expletive_verbs=expl_lists["verbs"],
         expletive_clausal_verbs=expl_lists["clausal_verbs"],
