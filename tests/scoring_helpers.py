@@ -15,6 +15,11 @@ def score_pairs(scorer: Scorer, pairs) -> DocumentResult:
     return next(iter(scorer.score([doc])))
 
 
+def flags(result: DocumentResult) -> list[tuple[str, str, str | None]]:
+    """(kind, text, expected) of every finding but assumptions."""
+    return [(f.kind, f.text, f.expected) for f in result.findings if f.kind != "assumption"]
+
+
 def chain_texts(result: DocumentResult, side: str, text: str) -> list[str]:
     """The mention texts of the chain on `side` that holds a mention reading `text`."""
     chain = next(c for c in result.chains if c.side == side and any(m.text == text for m in c.mentions))

@@ -16,7 +16,7 @@ from gendertrace import Scorer
 from gendertrace.mentions.extract import extract_mentions
 from gendertrace.parse.base import get_parser
 from gendertrace.rules import load_rules
-from scoring_helpers import chain_texts, score_pairs
+from scoring_helpers import chain_texts, flags, score_pairs
 
 pytestmark = pytest.mark.slow
 
@@ -36,10 +36,6 @@ def french_mentions():
     return run
 
 
-def _flags(result) -> list[tuple[str, str, str | None]]:
-    return [(f.kind, f.text, f.expected) for f in result.findings if f.kind != "assumption"]
-
-
 def test_a_name_before_a_semicolon_is_the_antecedent_of_the_subject_after_it(en_fr):
     # The English parser hangs the first clause on "grew" as a complement; binding would then keep "she" away
     # from "Ilse Varga", and the source would say nothing about her.
@@ -49,7 +45,7 @@ def test_a_name_before_a_semicolon_is_the_antecedent_of_the_subject_after_it(en_
         ("Later, Ilse Varga left for Lyon.", "Plus tard, Ilse Varga est parti à Lyon."),
     ])
     assert "she" in chain_texts(result, "source", "Ilse Varga")
-    assert _flags(result) == [("contradiction", "parti", "fem")]
+    assert flags(result) == [("contradiction", "parti", "fem")]
 
 
 def test_a_modal_keeps_the_impersonal_subject_of_its_infinitive(french_mentions):
@@ -74,7 +70,7 @@ def test_an_impersonal_subject_and_an_adjectival_noun_raise_nothing(en_fr):
         ("The guideline says there must be a vote.", "La ligne directrice dit qu'il doit y avoir un vote."),
         ("Nora Vidal agrees with it.", "Nora Vidal est d'accord avec elle."),
     ])
-    assert _flags(result) == []
+    assert flags(result) == []
 
 
 @pytest.fixture(scope="module")
@@ -124,7 +120,7 @@ def test_an_indefinite_noun_phrase_is_a_new_person_not_the_earlier_one(en_es):
         ("Later a man came in and bought bread.", "Más tarde entró un hombre y compró pan."),
     ])
     assert "hombre" not in chain_texts(result, "target", "mujer")
-    assert _flags(result) == []
+    assert flags(result) == []
 
 
 def test_a_definite_noun_phrase_takes_up_the_earlier_person(en_es):

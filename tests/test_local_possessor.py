@@ -11,8 +11,7 @@ from __future__ import annotations
 
 import pytest
 
-from gendertrace import Scorer
-from scoring_helpers import score_pairs
+from scoring_helpers import flags, score_pairs
 
 pytestmark = pytest.mark.slow
 
@@ -20,34 +19,25 @@ INTRO = ("Marta Ibargoyen llegó tarde a la reunión del consejo.",
          "Marta Ibargoyen arrived late at the council meeting.")
 
 
-@pytest.fixture(scope="module")
-def es_en() -> Scorer:
-    return Scorer("es", "en")
-
-
-def _flags(result) -> list[tuple[str, str, str | None]]:
-    return [(f.kind, f.text, f.expected) for f in result.findings if f.kind != "assumption"]
-
-
 def test_the_object_is_the_possessor_a_reader_sees(es_en):
     # "su informe" may be hers or his; "his report" is Tobías Erralde's, and that is no error.
     result = score_pairs(es_en, [INTRO, ("Después, ella felicitó a Tobías Erralde por su informe.",
                                          "Afterwards, she congratulated Tobías Erralde on his report.")])
-    assert _flags(result) == []
+    assert flags(result) == []
 
 
 def test_the_possessive_of_the_subject_alone_is_still_checked(es_en):
     # No second person in the clause: "his" can only be Marta Ibargoyen's, whom the source calls "ella".
     result = score_pairs(es_en, [INTRO, ("Después, ella presentó su informe.",
                                          "Afterwards, she presented his report.")])
-    assert _flags(result) == [("contradiction", "his", "fem")]
+    assert flags(result) == [("contradiction", "his", "fem")]
 
 
 def test_a_name_inside_the_subject_is_no_rival(es_en):
     # "Ortuño's wife ... made his first appearance": the possessive goes with the subject, as a reader takes it.
     result = score_pairs(es_en, [("La mujer de Ortuño, Irene Ortuño, hizo su primera aparición en la campaña.",
                                   "Ortuño's wife, Irene Ortuño, made his first appearance in the campaign.")])
-    assert ("contradiction", "his", "fem") in _flags(result)
+    assert ("contradiction", "his", "fem") in flags(result)
 
 
 def test_one_slip_in_the_subjects_chain_does_not_hand_the_possessive_back(es_en):
@@ -57,4 +47,4 @@ def test_one_slip_in_the_subjects_chain_does_not_hand_the_possessive_back(es_en)
                                  ("Ella respondió a todas las preguntas.", "She answered every question."),
                                  ("Después, ella felicitó a Tobías Erralde por su informe.",
                                   "Afterwards, she congratulated Tobías Erralde on his report.")])
-    assert _flags(result) == [("contradiction", "He", "fem")]
+    assert flags(result) == [("contradiction", "He", "fem")]

@@ -10,15 +10,9 @@ from __future__ import annotations
 
 import pytest
 
-from gendertrace import Scorer
 from scoring_helpers import score_pairs
 
 pytestmark = pytest.mark.slow
-
-
-@pytest.fixture(scope="module")
-def es_en() -> Scorer:
-    return Scorer("es", "en")
 
 
 def _evidence(result, label: str) -> list[tuple[str, str]]:

@@ -19,11 +19,6 @@ from scoring_helpers import chain_texts, score_pairs
 pytestmark = pytest.mark.slow
 
 
-@pytest.fixture(scope="module")
-def es_en() -> Scorer:
-    return Scorer("es", "en")
-
-
 
 
 def test_a_possessive_does_not_corefer_with_the_noun_it_determines(es_en):

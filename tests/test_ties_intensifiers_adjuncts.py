@@ -19,11 +19,6 @@ pytestmark = pytest.mark.slow
 
 
 @pytest.fixture(scope="module")
-def es_en() -> Scorer:
-    return Scorer("es", "en")
-
-
-@pytest.fixture(scope="module")
 def en_es() -> Scorer:
     return Scorer("en", "es")
 

@@ -9,32 +9,22 @@ from __future__ import annotations
 
 import pytest
 
-from gendertrace import Scorer
-from scoring_helpers import score_pairs
+from scoring_helpers import flags, score_pairs
 
 pytestmark = pytest.mark.slow
-
-
-@pytest.fixture(scope="module")
-def es_en() -> Scorer:
-    return Scorer("es", "en")
-
-
-def _flags(result) -> list[tuple[str, str, str | None]]:
-    return [(f.kind, f.text, f.expected) for f in result.findings if f.kind != "assumption"]
 
 
 def test_the_sources_own_title_contradicts_a_target_title(es_en):
     result = score_pairs(es_en, [("La señora Carmen Ordóñez firmó la carta ayer.",
                                   "Mr. Ordóñez signed the letter yesterday.")])
-    assert _flags(result) == [("contradiction", "Mr.", "fem")]
+    assert flags(result) == [("contradiction", "Mr.", "fem")]
 
 
 def test_a_title_is_not_flagged_by_a_pro_drop_subject_alone(es_en):
     # "cansada" is about whoever the zero subject of "Estaba" is; the resolver's choice does not overrule "Mr."
     result = score_pairs(es_en, [("Ordóñez firmó la carta ayer.", "Mr. Ordóñez signed the letter yesterday."),
                                  ("Estaba cansada.", "She was tired.")])
-    assert _flags(result) == []
+    assert flags(result) == []
 
 
 def test_a_title_against_a_pronoun_with_a_silent_source_flags_the_pronoun(es_en):
@@ -42,10 +32,10 @@ def test_a_title_against_a_pronoun_with_a_silent_source_flags_the_pronoun(es_en)
     # resolution, so it alone is flagged (before, both were: one of them necessarily a false alarm).
     result = score_pairs(es_en, [("Ordóñez firmó la carta ayer.", "Mr. Ordóñez signed the letter yesterday."),
                                  ("Luego se fue a casa.", "Then she went home.")])
-    assert _flags(result) == [("inconsistency", "she", None)]
+    assert flags(result) == [("inconsistency", "she", None)]
 
 
 def test_a_title_that_agrees_with_its_pronoun_raises_nothing(es_en):
     result = score_pairs(es_en, [("Ordóñez firmó la carta ayer.", "Mr. Ordóñez signed the letter yesterday."),
                                  ("Luego se fue a casa.", "Then he went home.")])
-    assert _flags(result) == []
+    assert flags(result) == []
