@@ -60,8 +60,8 @@ def check_outputs(outputs: Iterable[tuple[str, PathLike | None]],
     for label, out in outs:
         for in_label, inp in ins:
             if same_file(out, inp):
-                raise OutputError(f"{out}: the output {label} is the input {in_label} ({inp}); refusing to "
-                                  f"overwrite an input, nothing written")
+                raise OutputError(f"{out}: the output {label} names an input, {in_label} ({inp}); nothing "
+                                  f"written (an output never overwrites an input)")
     for k, (label, out) in enumerate(outs):
         for other_label, other in outs[k + 1:]:
             if same_file(out, other):
