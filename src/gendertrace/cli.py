@@ -38,11 +38,13 @@ def _language(ctx, param, value: str | None) -> str | None:
 
     code = value.strip().lower()
     have = sorted(p.stem for p in rules_dir().glob("*.yaml") if p.stem.isalpha() and 2 <= len(p.stem) <= 3)
+    option = "--src-lang" if param.name == "src_lang" else "--tgt-lang"
     if code not in have:
-        raise click.BadParameter(f"no rules for language {value!r} (rules exist for: {', '.join(have)})")
+        raise click.ClickException(f"{option}: no rules for language {value!r} (no {code}.yaml among the "
+                                   f"rules; rules exist for: {', '.join(have)})")
     if param.name == "tgt_lang" and ctx.params.get("src_lang") == code:
-        raise click.BadParameter(f"{code!r} is also the source language: a translation goes from one "
-                                 f"language to another")
+        raise click.ClickException(f"--tgt-lang: {code!r} is also the source language: a translation goes "
+                                   f"from one language to another")
     return code
 
 
