@@ -64,8 +64,8 @@ def test_a_sheet_whose_declarations_could_not_be_applied_is_refused(ws, case):
 
 
 def test_a_valid_sheet_still_applies_its_declaration(ws):
-    # "she" is an English feminine personal pronoun (Huddleston & Pullum, The Cambridge Grammar of the English
-    # Language, ch. 17): the declared gender reaches the entity.
+    # "she" is the English feminine third-person personal pronoun (from memory: Huddleston & Pullum, The
+    # Cambridge Grammar of the English Language, 2002, ch. 17): the declared gender reaches the entity.
     (ws.root / "people.yaml").write_text("persons:\n  - name: Nerea Ubillos\n    pronouns:\n      en: she/her\n",
                                          encoding="utf-8")
     ws.score("in.tsv", "-o", "out.jsonl", "--entities", "people.yaml", code=0)
