@@ -78,3 +78,13 @@ def test_a_policy_key_error_names_its_line(ws):
     (ws.root / "policy.yaml").write_text("neutral_for_binary: accept\nfirst_name: names.tsv\n", encoding="utf-8")
     result = ws.score("in.tsv", "-o", "out.jsonl", "--policy", "policy.yaml", code=1)
     assert "Error: policy.yaml:2: first_name: unknown policy key" in result.output
+
+
+def test_a_bad_first_name_list_is_reported_before_any_result(ws):
+    ws.score("in.tsv", "-o", "res.jsonl", code=0)
+    (ws.root / "names.tsv").write_text("Nerea\tfem\nIker\tmale\n", encoding="utf-8")
+    (ws.root / "policy.yaml").write_text("first_names: names.tsv\n", encoding="utf-8")
+    before = ws.snapshot()
+    result = ws.score("in.tsv", "-o", "res.jsonl", "--policy", "policy.yaml", code=1)
+    assert "names.tsv:2: expected 'name<TAB>fem|masc', found 'Iker\\tmale'" in result.output
+    assert ws.snapshot() == before

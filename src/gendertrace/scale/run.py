@@ -26,7 +26,7 @@ from dataclasses import dataclass, field
 from pathlib import Path
 
 from gendertrace.api import Summary
-from gendertrace.declared.policy import PACKAGE_NAME_LIST
+from gendertrace.declared.policy import PACKAGE_NAME_LIST, load_first_names
 from gendertrace.errors import GendertraceError, InputError
 from gendertrace.io.outputs import check_outputs, replace_into, staged_file, temporary_beside
 from gendertrace.io.readers import iter_documents, read_corpus, untranslated_in
@@ -154,6 +154,9 @@ def score_stream(
                   run_inputs(input_path, plan, main_scorer))
     size = plan.batch_docs if plan is not None else main_scorer.settings.batch_size
     documents, total = open_documents(input_path, fmt, tmx_group, preparsed_check(main_scorer, input_path))
+    policy = plan.policy if plan is not None else main_scorer.settings.policy
+    if policy.first_names:
+        load_first_names(policy.first_names)  # read when the first document is scored: a bad list fails now
     signature = dict(main_scorer.signature(), batch_docs=size, alignment=alignment_label(main_scorer),
                      input=str(input_path))
 
