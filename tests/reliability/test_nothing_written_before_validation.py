@@ -90,7 +90,7 @@ def test_resume_refuses_kept_documents_whose_input_rows_changed(ws, doc_id):
     before = ws.snapshot()
     result = ws.score("in.tsv", "-o", "res.jsonl", "--resume", code=1)
     line = {"d1": 2, "d3": 5}[doc_id]
-    assert (f"Error: cannot resume res.jsonl: the input rows of document {doc_id!r} (input line {line}) "
+    assert (f"Error: cannot resume res.jsonl: the input rows of document {doc_id!r} (in.tsv:{line}) "
             f"changed since it was scored; score afresh without --resume") in result.output
     assert ws.snapshot() == before
 

@@ -160,7 +160,7 @@ def score_stream(
     signature = dict(main_scorer.signature(), batch_docs=size, alignment=alignment_label(main_scorer),
                      input=str(input_path))
 
-    done = _resume_point(files, signature, total, documents) if resume else 0
+    done = _resume_point(files, signature, total, documents, input_path) if resume else 0
     files.partial.parent.mkdir(parents=True, exist_ok=True)
     _write_json(signature_path(files.partial), dict(signature, state="incomplete"))
 
@@ -234,7 +234,7 @@ def run_inputs(input_path: str | Path, plan: ScoringPlan | None, scorer: Scorer)
 
 
 def _resume_point(files: RunFiles, signature: dict, total: int,
-                  documents: Callable[[], Iterator[Document]]) -> int:
+                  documents: Callable[[], Iterator[Document]], input_path: str | Path) -> int:
     """How many documents the partial results already hold (made from a complete OUT when there is no
     partial file), after checking they were written with these settings from the same input rows."""
     source = files.partial if files.partial.exists() else files.out
@@ -263,7 +263,7 @@ def _resume_point(files: RunFiles, signature: dict, total: int,
         if done > total:
             raise GendertraceError(f"cannot resume {source}: it holds {done} results but the input has only "
                                    f"{total} documents")
-        _check_kept(documents(), source, kept_digests(digests_path(files.partial), done))
+        _check_kept(documents(), source, kept_digests(digests_path(files.partial), done), input_path)
     except GendertraceError:
         if source == files.out:  # the copy was made by this run: leave the folder as it was
             files.partial.unlink(missing_ok=True)
@@ -282,7 +282,8 @@ def _finish(files: RunFiles, signature: dict) -> None:
     signature_path(files.partial).unlink(missing_ok=True)
 
 
-def _check_kept(docs: Iterable[Document], partial: Path, kept: list[tuple[str, str]]) -> None:
+def _check_kept(docs: Iterable[Document], partial: Path, kept: list[tuple[str, str]],
+                input_path: str | Path) -> None:
     """Refuse to resume when a kept result is of another document, or its document's input rows changed."""
     for k, (doc, (doc_id, digest)) in enumerate(zip(docs, kept, strict=False)):  # kept: a prefix of docs
         if doc_id != doc.doc_id:
@@ -292,7 +293,7 @@ def _check_kept(docs: Iterable[Document], partial: Path, kept: list[tuple[str, s
             )
         if digest != document_digest(doc):
             line = doc.segments[0].line if doc.segments else 0
-            where = f" (input line {line})" if line else ""
+            where = f" ({input_path}:{line})" if line else f" ({input_path})"
             raise GendertraceError(
                 f"cannot resume {partial}: the input rows of document {doc.doc_id!r}{where} changed since "
                 f"it was scored; score afresh without --resume"
