@@ -363,3 +363,27 @@ def test_predicative_adjunct_needs_a_comma_and_no_object():
         listo listo ADJ Gender=Masc|Number=Sing 2 xcomp""")
     [site] = flip_sites([adjunct, adverbial, on_object], ES)
     assert (site.seg, site.text, site.new_text, site.rule) == (0, "enfadada", "enfadado", "adjunct")
+
+
+@pytest.mark.slow
+def test_rules_on_the_demo_narrators_with_spacy_as_the_tagger():
+    """The cue and site rules on spaCy's parses (the reference tagger) of the demo's first-person documents."""
+    from gendertrace.demo import demo_dir
+    from gendertrace.io.readers import read_corpus
+    from gendertrace.parse import get_parser
+
+    docs = {d.doc_id: d for d in read_corpus(demo_dir() / "en-es.v1.tsv")}
+    en, es = get_parser("en"), get_parser("es")
+    cues, words = {}, {}
+    for doc_id in ("en-es-08", "en-es-09"):
+        segs = docs[doc_id].segments
+        cues[doc_id] = narrator_gender(word_cues(en.parse_many([s.source for s in segs]), EN))
+        sites = flip_sites(es.parse_many([s.target for s in segs]), ES, en.parse_many([s.source for s in segs]))
+        words[doc_id] = {(segs[s.seg].seg_id, s.text) for s in sites}
+    # "I was the only woman in my flight class"; "As a father of two ..., I rarely get ...".
+    assert cues == {"en-es-08": "fem", "en-es-09": "masc"}
+    # The engine's wrong words that agree with the narrator with no pronoun are sites. "al capitán" is a role
+    # noun, not a predicate of the narrator, and "igual de asustado" is tagged as a noun after "de": both left
+    # to the scorer, as is "agotada" after "terminé", which the small Spanish pipeline tags as a noun.
+    assert {("2", "cansado"), ("2", "desanimado"), ("3", "orgullosa")} <= words["en-es-08"]
+    assert {("4", "agradecida"), ("4", "seguro")} <= words["en-es-09"]

@@ -10,17 +10,22 @@ same flips. A flip site is a Spanish word that agrees with the first-person sing
 2. predicated of the first person singular, in one of these ways:
    - it has a `cop`, `aux` or `aux:pass` dependent whose lemma is an agreeing copula or auxiliary of the rules
      (`copulas`, `agreeing_aux`: *estoy cansada*, *soy una experta*, *fui elegido*) and is finite first person
-     singular (Person=1, Number=Sing), and no dependent is an invariable auxiliary (*haber*: *he cansado*);
+     singular (Person=1, Number=Sing);
    - it has such a copula or auxiliary dependent of any person and the pronoun *yo* as its subject;
    - its copula or auxiliary is a form whose first and third person singular coincide (imperfect,
      conditional, subjunctive: *estaba*, which taggers often tag third person), it has no subject, and a
-     verb coordinated with it is first person singular (*estaba dormida y sentí ...*);
+     verb coordinated with it is first person singular (*estaba dormida y sentí ...*), or the aligned English
+     segment has *I* as a subject and no third-person singular pronoun subject (*I was tired* / *estaba
+     cansada*);
    - it depends on a finite first-person singular verb that has no object but a first-person clitic, and
      either that verb's lemma is an agreeing copula of the rules (*me sentí orgullosa*, *me quedé dormido*,
      *estaré encantado*) or the word is its `xcomp` or `advcl`, or its `advmod` right after a comma (a
      predicative adjunct: *me puse en pie, enfadada*; *corrí rápido* is adverbial); an object would make the
      word agree with the object instead (*lo dejé listo*);
    - it is *mismo*/*misma* right after *mí* or *yo* (*por mí misma*), whatever its tag;
+   - it is a `conj` of a site with no copula or subject of its own (*cansada y desanimada*).
+   A participle after *haber* alone does not agree (*he cansado*); with a copula or a passive auxiliary of
+   its own the word still does (*había estado asustada*, *he sido elegida*);
 3. outside quotation marks: first person inside a quotation is the quoted speaker, not the narrator.
 
 The flip turns the word to the other gender: the last letter o <-> a for adjectives and participles; the
@@ -132,15 +137,23 @@ def _object_free(p: ParsedText, v: Token) -> bool:
                    and k.feats.get("Person") != "1" for k in p.children(v.i))
 
 
-def _predicated_of_speaker(p: ParsedText, t: Token, rules: LanguageRules) -> str | None:
+def english_i_only(p: ParsedText) -> bool:
+    """The English sentence side has *I* as a subject and no third-person singular pronoun subject."""
+    subjects = [t.text.lower() for t in p.tokens if t.deprel.startswith("nsubj")]
+    return "i" in subjects and not any(s in ("he", "she", "it", "this", "that") for s in subjects)
+
+
+def _predicated_of_speaker(p: ParsedText, t: Token, rules: LanguageRules, english_i: bool = False) -> str | None:
     """How `t` is predicated of the first person singular (rule 2 of the module), or None."""
     if t.text.lower() in ("mismo", "misma") and t.i > 0 and p.tokens[t.i - 1].text.lower() in ("mí", "yo"):
         return "emphatic"
     kids = p.children(t.i)
-    if any(k.deprel.startswith("aux") and k.lemma.lower() in rules.invariable_aux for k in kids):
-        return None
     agreeing = [k for k in kids if k.deprel in ("cop", "aux", "aux:pass")
                 and k.lemma.lower() in rules.copulas | rules.agreeing_aux]
+    # A participle after haber alone does not agree (*he cansado*); with a copula or passive auxiliary of its
+    # own the word still does (*había estado asustada*, *he sido elegida*).
+    if not agreeing and any(k.deprel.startswith("aux") and k.lemma.lower() in rules.invariable_aux for k in kids):
+        return None
     subject = [k for k in kids if k.deprel.startswith("nsubj")]
     if any(_first_singular(k) for k in agreeing):
         return "copula"
@@ -153,6 +166,8 @@ def _predicated_of_speaker(p: ParsedText, t: Token, rules: LanguageRules) -> str
             coordinated.append(head)
         if any(_speaker_verb(p, v) for v in coordinated):
             return "coordinated"
+        if english_i:
+            return "english-subject"
     head = p.head_of(t.i)
     if head is None or not _first_singular(head) or not _object_free(p, head):
         return None
@@ -200,11 +215,16 @@ def _flip_noun(p: ParsedText, t: Token, rules: LanguageRules) -> tuple[str, str,
     return gender, new_det + between + counterpart, det
 
 
-def flip_sites(parses: Sequence[ParsedText], rules: LanguageRules) -> list[FlipSite]:
-    """Every flip site of a document's target segments (the module's rules), in text order."""
+def flip_sites(
+    parses: Sequence[ParsedText], rules: LanguageRules, sources: Sequence[ParsedText] | None = None
+) -> list[FlipSite]:
+    """Every flip site of a document's target segments (the module's rules), in text order; `sources`, the
+    English segments aligned with them, allow the rule on forms whose first and third person coincide."""
     out: list[FlipSite] = []
     for seg, p in enumerate(parses):
         quotes = quoted_spans(p.text)
+        english_i = sources is not None and english_i_only(sources[seg])
+        heads: dict[int, bool] = {}  # tokens already taken as sites: their conjuncts agree with them
         for t in p.tokens:
             if _inside(quotes, t.start):
                 continue
@@ -212,7 +232,7 @@ def flip_sites(parses: Sequence[ParsedText], rules: LanguageRules) -> list[FlipS
                 noun = _flip_noun(p, t, rules)
                 if noun is None:
                     continue
-                rule = _predicated_of_speaker(p, t, rules)
+                rule = _predicated_of_speaker(p, t, rules, english_i)
                 if rule is None or rule == "emphatic":
                     continue
                 gender, new, det = noun
@@ -223,9 +243,13 @@ def flip_sites(parses: Sequence[ParsedText], rules: LanguageRules) -> list[FlipS
             flip = _flip_word(t, rules)
             if flip is None:
                 continue
-            rule = _predicated_of_speaker(p, t, rules)
+            rule = _predicated_of_speaker(p, t, rules, english_i)
+            if rule is None and t.deprel == "conj" and heads.get(t.head) and not any(
+                    k.deprel in ("cop", "aux", "aux:pass") or k.deprel.startswith("nsubj") for k in p.children(t.i)):
+                rule = "conjunct"
             if rule is None:
                 continue
+            heads[t.i] = True
             out.append(FlipSite(seg, t.start, t.end, t.text, flip[1], flip[0], rule))
     return out
 

@@ -299,7 +299,7 @@ def plan_flips(
     conflicting = 0
     for pd in parsed:
         doc = pd.document
-        sites = flip_sites(pd.target, tgt_rules)
+        sites = flip_sites(pd.target, tgt_rules, pd.source)
         if not sites:
             continue
         words = word_cues(pd.source, src_rules)
