@@ -19,13 +19,18 @@ from gendertrace.bench.firstperson import (
 )
 from gendertrace.bench.narrator import (
     COLUMNS,
+    RECALL_GROUPS,
     Flag,
     InjectedFlip,
+    NarratorResult,
     PersonError,
+    PolicyRun,
+    Tally,
     assumption_check,
     default_data_dir,
     errors_path,
     first_person_precision,
+    flags_of,
     flip_scores,
     flipped_document,
     list_recall,
@@ -39,7 +44,9 @@ from gendertrace.model import (
     Document,
     DocumentResult,
     DocumentStats,
+    Entity,
     Finding,
+    Mention,
     ParsedDocument,
     ParsedText,
     Segment,
@@ -168,6 +175,29 @@ def test_first_person_precision_and_the_assumption_check():
     assert (p.on_error, p.judged, p.findings) == (1, 2, 3)
     a = assumption_check(errors, flags)
     assert (a.rows, a.marked, a.flagged) == (1, 1, 1)
+
+
+def _mention(mid: str, text: str, person: str | None, number: str | None = "sing") -> Mention:
+    return Mention(mid, "source", 0, 0, (0,), "pronoun", text, 0, len(text), number=number, person=person)
+
+
+def test_flags_know_the_first_person_from_the_entity_mentions():
+    narrator = Entity("E1", (_mention("m1", "I", "1"),), (), (), "fem", 0.9)
+    we = Entity("E2", (_mention("m2", "we", "1", "plur"),), (), (), "masc", 0.9)
+    she = Entity("E3", (_mention("m3", "she", "3"),), (), (), "fem", 0.9)
+    fs = tuple(Finding("contradiction", "1", k, k + 3, "w", "fem", "masc", e, 0.9, ())
+               for k, e in ((0, "E1"), (4, "E2"), (8, "E3")))
+    res = DocumentResult("d1", "en", "es", (narrator, we, she), fs, DocumentStats(1, 3, 3, 3, 0, {}))
+    assert [(f.start, f.first_person) for f in flags_of("S", [res])] == [(0, True), (4, False), (8, False)]
+
+
+def test_section_tables_from_a_result(tmp_path):
+    run = PolicyRun("first names off")
+    run.recall = {label: {"S": Tally(1, 2), "both": Tally(1, 2)} for label, _ in RECALL_GROUPS}
+    result = NarratorResult(tmp_path, ("S",), 2, 1, [run])
+    lines = narrator_section(tmp_path, result)
+    assert "| English word cue, narrator | first names off | 1/2 (0.500) | 1/2 (0.500) |" in lines
+    assert any(line.startswith("| first names off | 0 | 0 | n/a |") for line in lines)
 
 
 def test_section_is_skipped_without_the_data(tmp_path):
