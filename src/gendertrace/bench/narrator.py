@@ -106,6 +106,7 @@ class Flag:
     end: int
     kind: str
     first_person: bool
+    text: str = ""
 
 
 def repository_root() -> Path:
@@ -192,7 +193,8 @@ def flags_of(system: str, results: Iterable[DocumentResult]) -> list[Flag]:
             ent.id for ent in r.entities
             if any(m.person == "1" and m.number != "plur" for m in (*ent.source_mentions, *ent.target_mentions))
         }
-        out += [Flag(system, r.doc_id, f.seg_id, f.start, f.end, f.kind, f.entity in first) for f in r.findings]
+        out += [Flag(system, r.doc_id, f.seg_id, f.start, f.end, f.kind, f.entity in first, f.text)
+                for f in r.findings]
     return out
 
 
@@ -391,6 +393,7 @@ class PolicyRun:
     reference_first_person: int = 0
     flips: dict[str, FlipTally] = field(default_factory=dict)
     missed: list[PersonError] = field(default_factory=list)
+    false_first_person: list[Flag] = field(default_factory=list)
 
 
 @dataclass
@@ -462,6 +465,8 @@ def run_narrator(
         flagging = [f for f in flags if f.kind in FLAGGING]
         run.missed = [e for e in mine if e.kind == "error" and e.who == "narrator"
                       and not any(_overlaps(f, e) for f in flagging)]
+        run.false_first_person = [f for f in flagging if f.first_person and not any(
+            _overlaps(f, e) for e in mine if e.kind == "error")]
         ref_docs = docs_of[REFERENCE]
         parsed = scorer.parse(ref_docs)
         clean = list(scorer.score_parsed_batch(parsed))
@@ -550,6 +555,10 @@ def narrator_section(data: str | Path, result: NarratorResult | None = None) -> 
         lines += ["", f"Narrator errors missed ({result.runs[0].policy}):", ""]
         lines += [f"- {e.system} {e.doc_id} [{e.seg_id}] {e.text!r} (expected {e.expected}; cue: {e.cue})"
                   for e in result.runs[0].missed]
+    if result.runs and result.runs[0].false_first_person:
+        lines += ["", f"First-person findings on no listed error ({result.runs[0].policy}):", ""]
+        lines += [f"- {f.system} {f.doc_id} [{f.seg_id}] {f.kind} on {f.text!r}"
+                  for f in result.runs[0].false_first_person]
     return lines
 
 
