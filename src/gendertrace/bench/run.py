@@ -353,6 +353,10 @@ def run_benchmark(
     from gendertrace.bench.scale import scale_section
 
     lines += [""] + scale_section(data)
+    # The narrator and the person addressed, on the real MT folder beside the treebanks (gendertrace.bench.narrator).
+    from gendertrace.bench.narrator import narrator_section
+
+    lines += [""] + narrator_section(data.parent / "wmt24-en-es-dev")
     # Treebank sentences stay out of the written report: it names documents, segments and words only.
     lines += ["", "## The 20 most confident false alarms (clean runs)", ""]
     alarms = sorted(
