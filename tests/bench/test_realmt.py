@@ -152,3 +152,12 @@ def test_a_flipped_mayor_is_flagged_on_the_engine_and_not_on_the_reference(tmp_p
     first = run_realmt(data, align_priors=priors)
     assert priors.is_file()
     assert [r.findings for r in run_realmt(data, align_priors=priors)] == [r.findings for r in first]
+
+
+def test_unjudged_findings_are_listed_by_id_and_word(tmp_path):
+    (tmp_path / "data").mkdir()
+    results = [_result("A", [("1", 0, 2, "El"), ("3", 1, 4, "una")], 10, 8)]
+    judged = load_judgements(_write(tmp_path / "j.tsv", ["A\td1\t1\t0\t2\tEl\treal\treal\tx"]))
+    lines = realmt_section(tmp_path / "data", results, judged, {})
+    assert "- A d1 [3] 1-4 'una'" in lines
+    assert not any(line.startswith("- A d1 [1]") for line in lines)

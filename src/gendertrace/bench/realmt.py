@@ -46,6 +46,7 @@ LABELS = ("real", "false")
 COLUMNS = ("system", "doc_id", "seg_id", "start", "end", "text", "label", "cause", "note")
 
 Key = tuple[str, str, str, int, int, str]
+MAX_LISTED = 40  # unjudged findings listed in the report
 
 
 @dataclass(frozen=True)
@@ -279,6 +280,11 @@ def realmt_section(
         for cause, label in sorted({(c, lab) for c, lab, _ in causes},
                                    key=lambda k: (-causes[(*k, False)] - causes[(*k, True)], k)):
             lines.append(f"| {cause} | {label} | {causes[(cause, label, False)]} | {causes[(cause, label, True)]} |")
+    unjudged = [w for r in results for w in r.findings if w.key not in judgements]
+    if unjudged:
+        # Ids and the flagged word only, so that a reader can judge them and add rows to the judgement file.
+        lines += ["", f"Findings not judged yet ({len(unjudged)}; system, document, segment, offsets, word):", ""]
+        lines += [f"- {w.system} {w.doc_id} [{w.seg_id}] {w.start}-{w.end} {w.text!r}" for w in unjudged[:MAX_LISTED]]
     return lines
 
 

@@ -275,6 +275,7 @@ def run_benchmark(
     options += f" --half {half}" if half else ""
     options += f" --align-priors {align_priors}" if align_priors else ""
     options += " --only realmt" if not treebank else ""
+    options += f" --realmt-systems {','.join(realmt_systems)}" if realmt_systems else ""
     head = [
         "# Benchmarks",
         "",
