@@ -161,3 +161,16 @@ def test_unjudged_findings_are_listed_by_id_and_word(tmp_path):
     lines = realmt_section(tmp_path / "data", results, judged, {})
     assert "- A d1 [3] 1-4 'una'" in lines
     assert not any(line.startswith("- A d1 [1]") for line in lines)
+
+
+def test_bench_command_says_the_real_mt_part_is_skipped_when_its_folder_is_absent(tmp_path):
+    from click.testing import CliRunner
+
+    from gendertrace.cli import main
+
+    report = tmp_path / "report.md"
+    result = CliRunner().invoke(main, ["bench", "--only", "realmt", "--realmt", str(tmp_path / "none"),
+                                       "--report", str(report)])
+    assert result.exit_code == 0
+    assert "real MT section skipped: no folder at" in result.output
+    assert "Skipped: no real MT folder at" in report.read_text(encoding="utf-8")
