@@ -312,13 +312,23 @@ def demo(out, corpus):
 @click.option("--report", default=None, type=click.Path(dir_okay=False), help="Write the tables as Markdown here.")
 @click.option("--directions", default=None, help="Comma-separated directions, e.g. es-en,en-es (default: all).")
 @click.option("--seed", default=13, show_default=True, help="Seed of the error injector.")
-def bench(data, report, directions, seed):
+@click.option("--half", type=click.Choice(["1", "2"]), default=None,
+              help="Treebank figures on one half of the news documents only (split by document id).")
+@click.option("--align-priors", type=click.Path(file_okay=False), default=None,
+              help="Folder of frozen alignment models, one per direction (learned there when missing).")
+@click.option("--realmt", default="../shared/wmt24-en-es-dev", show_default=True, type=click.Path(),
+              help="Folder of real English-Spanish MT output (SYSTEM.jsonl files, reference.jsonl).")
+@click.option("--realmt-systems", default=None, help="Comma-separated systems of --realmt (default: all).")
+@click.option("--only", type=click.Choice(["treebank", "realmt"]), default=None, help="Run one part only.")
+def bench(data, report, directions, seed, half, align_priors, realmt, realmt_systems, only):
     """Measure false alarms and recall on real translations with injected gender errors."""
     from gendertrace.bench.run import run_benchmark
 
-    if not Path(data).is_dir():
+    if only != "realmt" and not Path(data).is_dir():
         click.echo(f"benchmark skipped: no treebank folder at {data}", err=True)
         return
+    if only != "treebank" and not Path(realmt).is_dir():
+        click.echo(f"real MT section skipped: no folder at {realmt}", err=True)
     from gendertrace.io.outputs import StagedOutputs, check_outputs
 
     try:
@@ -326,7 +336,11 @@ def bench(data, report, directions, seed):
                       [("a treebank of --data", p) for p in sorted(Path(data).rglob("*")) if p.is_file()])
         with StagedOutputs() as staged:
             text = run_benchmark(Path(data), directions.split(",") if directions else None, seed=seed,
-                                 report=staged.path(report) if report else None)
+                                 report=staged.path(report) if report else None, half=int(half) if half else None,
+                                 align_priors=Path(align_priors) if align_priors else None,
+                                 realmt=None if only == "treebank" else Path(realmt),
+                                 realmt_systems=realmt_systems.split(",") if realmt_systems else None,
+                                 treebank=only != "realmt")
     except GendertraceError as exc:
         _fail(exc)
     except FileNotFoundError as exc:  # a treebank the directions need is not in --data
