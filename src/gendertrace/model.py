@@ -9,13 +9,10 @@ from collections.abc import Mapping
 from dataclasses import dataclass, field
 from typing import Literal
 
-Gender = Literal["fem", "masc", "neutral"]
-Side = Literal["source", "target"]
-GENDERS: tuple[str, ...] = ("fem", "masc", "neutral")
-FINDING_KINDS: tuple[str, ...] = ("contradiction", "inconsistency", "assumption")
+# The vocabularies live in gendertrace.vocab; these names stay importable from here.
+from gendertrace.vocab import FINDING_KINDS, GENDERS, UD_GENDER, Gender, MentionKind  # noqa: F401
 
-# UD's Gender values mapped onto the project's vocabulary (UD guidelines, "Gender" feature page).
-UD_GENDER = {"Fem": "fem", "Masc": "masc", "Neut": "neutral"}
+Side = Literal["source", "target"]
 
 
 # ---------------------------------------------------------------------------------------------------------------
@@ -179,9 +176,6 @@ class EvidenceItem:
             "weight": round(self.weight, 3),
             "rule": self.rule,
         }
-
-
-MentionKind = Literal["name", "noun", "pronoun", "zero"]
 
 
 @dataclass(frozen=True)

@@ -13,6 +13,15 @@ from collections.abc import Sequence
 from dataclasses import dataclass, field
 
 from gendertrace.model import Chain, Mention, ParsedText, Side
+from gendertrace.vocab import (
+    BINARY,
+    NOMINAL_KINDS,
+    OBJECT_RELS,
+    RELATIVE_CLAUSE_RELS,
+    SUBJECT_RELS,
+    Gender,
+    MentionKind,
+)
 
 # How far back (in segments) a pronoun or zero subject looks for its antecedent.
 PRONOUN_WINDOW = 3
@@ -68,7 +77,7 @@ def _order(m: Mention) -> tuple[int, int]:
 
 
 def _genders(ms: Sequence[Mention]) -> set[str]:
-    return {mk.gender for m in ms for mk in m.marks if mk.gender in ("fem", "masc")}
+    return {mk.gender for m in ms for mk in m.marks if mk.gender in BINARY}
 
 
 def _compatible(a: Sequence[Mention], b: Sequence[Mention], use_gender: bool) -> bool:
@@ -115,7 +124,7 @@ def resolve_chains(
             return True
         return False
 
-    names = [m for m in ms if m.kind == "name"]
+    names = [m for m in ms if m.kind == MentionKind.NAME]
     # Pass 1: exact name match.
     for i, a in enumerate(names):
         for b in names[i + 1 :]:
@@ -125,49 +134,49 @@ def resolve_chains(
     # Pass 2: structure inside a segment: apposition, name-internal compounds, predicate nominatives.
     by_seg_head: dict[tuple[int, int], Mention] = {}
     for m in ms:
-        if m.kind != "zero":
+        if m.kind != MentionKind.ZERO:
             for t in m.tokens:
                 by_seg_head[(m.seg, t)] = m
     for m in ms:
         # "∅ era la responsable": a zero subject and the person noun predicated of it.
-        if m.kind == "zero":
+        if m.kind == MentionKind.ZERO:
             pred = by_seg_head.get((m.seg, m.head))
-            if pred is not None and pred.kind == "noun":
+            if pred is not None and pred.kind == MentionKind.NOUN:
                 try_union(pred, m)
             continue
         # "Wintour herself", "la ministra misma": an intensifying reflexive is the person it follows.
         held = _intensifier_of(m, parses[m.seg])
         if held >= 0:
             other = by_seg_head.get((m.seg, held))
-            if other is not None and other.kind in ("name", "noun") and try_union(other, m):
+            if other is not None and other.kind in NOMINAL_KINDS and try_union(other, m):
                 antecedent[m.id] = other.id
             continue
-        if m.kind not in ("name", "noun"):
+        if m.kind not in NOMINAL_KINDS:
             continue
         tok = parses[m.seg].tokens[m.head]
         if tok.deprel in ("appos", "compound", "flat", "flat:name", "nmod:appos") and not tok.is_root:
             other = by_seg_head.get((m.seg, tok.head))
             if other is None and tok.deprel == "appos":
                 other = _appos_through_modifier(parses[m.seg], tok.head, m.seg, by_seg_head)
-            if other is not None and other.kind in ("name", "noun") and other is not m:
+            if other is not None and other.kind in NOMINAL_KINDS and other is not m:
                 try_union(other, m)
         # A role noun right before a name is its title: "la ingeniera Carmen Ibarluce", "Captain Moira Tennick".
-        if m.kind == "noun":
+        if m.kind == MentionKind.NOUN:
             nxt = by_seg_head.get((m.seg, m.tokens[-1] + 1))
             if nxt is not None and nxt.kind == "name":
                 try_union(m, nxt)
         # "was elected president", "named her director": a person noun predicated of the clause's subject.
-        if m.kind == "noun" and tok.deprel in ("xcomp", "attr") and not tok.is_root:
+        if m.kind == MentionKind.NOUN and tok.deprel in ("xcomp", "attr") and not tok.is_root:
             for k in parses[m.seg].children(tok.head):
                 subj = by_seg_head.get((m.seg, k.i))
-                if k.deprel in ("nsubj", "nsubj:pass") and subj is not None and subj.kind in ("name", "noun"):
+                if k.deprel in SUBJECT_RELS and subj is not None and subj.kind in NOMINAL_KINDS:
                     try_union(subj, m)
         # "A es ministra" (UD: copular predicate nominal) and "A is the minister" (ClearNLP: attr of be).
         if tok.deprel in ("nsubj",):
             head = parses[m.seg].tokens[tok.head]
             pred = by_seg_head.get((m.seg, head.i))
             has_cop = any(k.deprel == "cop" for k in parses[m.seg].children(head.i))
-            if pred is not None and pred is not m and has_cop and pred.kind in ("name", "noun"):
+            if pred is not None and pred is not m and has_cop and pred.kind in NOMINAL_KINDS:
                 try_union(m, pred)
             if head.lemma.lower() == "be":
                 for k in parses[m.seg].children(head.i):
@@ -177,19 +186,19 @@ def resolve_chains(
     # Pass 2b: "se incorporó como becaria", "joined as a trainee": the role noun is the clause's subject.
     if role_markers:
         for m in ms:
-            if m.kind != "noun":
+            if m.kind != MentionKind.NOUN:
                 continue
             verb = _role_marked_verb(parses[m.seg], m.head, role_markers)
             if verb < 0:
                 continue
             holder = by_seg_head.get((m.seg, verb))
-            if holder is not None and holder.kind in ("name", "noun") and holder is not m:
+            if holder is not None and holder.kind in NOMINAL_KINDS and holder is not m:
                 try_union(holder, m)  # "la incorporación de Julián Ferrás como secretario": no verb, a name
                 continue
             # With an object pronoun the role is predicated of the object ("la describió como una mujer
             # valiente", "lo nombraron como director"); otherwise of the subject.
             obj = _clause_object(ms, m, verb)
-            holder = obj if obj is not None and obj.kind == "pronoun" else _clause_subject(ms, m, verb)
+            holder = obj if obj is not None and obj.kind == MentionKind.PRONOUN else _clause_subject(ms, m, verb)
             if holder is None:
                 # A non-finite clause has its subject understood: the object of the verb above where it has
                 # one ("le permite seguir como secretaria": object control), else that verb's subject.
@@ -214,10 +223,10 @@ def resolve_chains(
     # Pass 4: the zero subject of a coordinated verb shares the subject of the first conjunct.
     subj_of_clause: dict[tuple[int, int], Mention] = {}
     for m in ms:
-        if m.role in ("nsubj", "nsubj:pass") and m.clause >= 0 and m.pron_type != "possessive":
+        if m.role in SUBJECT_RELS and m.clause >= 0 and m.pron_type != "possessive":
             subj_of_clause.setdefault((m.seg, m.clause), m)
     for m in ms:
-        if m.kind != "zero":
+        if m.kind != MentionKind.ZERO:
             continue
         t = parses[m.seg].tokens[m.head]
         if t.deprel == "conj" and (m.seg, t.head) in subj_of_clause:
@@ -228,7 +237,7 @@ def resolve_chains(
     # Pass 5: role-noun head match ("la ministra ... la ministra"). An indefinite noun phrase introduces a new
     # person rather than taking up one already mentioned ("la mujer ... como un hombre"), so the later mention
     # must not be indefinite.
-    nouns = [m for m in ms if m.kind == "noun"]
+    nouns = [m for m in ms if m.kind == MentionKind.NOUN]
     for i, a in enumerate(nouns):
         for b in nouns[i + 1 :]:
             if (a.key == b.key and cl.find(a.id) != cl.find(b.id) and not _different_names(cl, a, b)
@@ -246,7 +255,7 @@ def resolve_chains(
             if c.seg == m.seg
             and not c.quoted
             and c.person != "1"
-            and c.role in ("nsubj", "nsubj:pass")
+            and c.role in SUBJECT_RELS
             and c.pron_type != "possessive"
         ]
         if speakers:
@@ -257,7 +266,7 @@ def resolve_chains(
 
     # Pass 6: pronouns and zero subjects, in text order, to the most salient compatible preceding cluster.
     for m in ms:
-        if m.kind not in ("pronoun", "zero") or m.id in antecedent or m.person == "1":
+        if m.kind not in (MentionKind.PRONOUN, MentionKind.ZERO) or m.id in antecedent or m.person == "1":
             continue
         if not m.animate and m.gender is None:
             continue  # "it", "its", "ello": a thing, it joins no person
@@ -295,12 +304,12 @@ def resolve_chains(
 
 def _clause_subject(ms: Sequence[Mention], m: Mention, clause: int) -> Mention | None:
     return next((c for c in ms if c is not m and c.seg == m.seg and c.clause == clause
-                 and c.role in ("nsubj", "nsubj:pass") and c.pron_type != "possessive"), None)
+                 and c.role in SUBJECT_RELS and c.pron_type != "possessive"), None)
 
 
 def _clause_object(ms: Sequence[Mention], m: Mention, clause: int) -> Mention | None:
     return next((c for c in ms if c is not m and c.seg == m.seg and c.clause == clause
-                 and c.role in ("obj", "iobj", "dobj", "dative") and c.pron_type != "possessive"), None)
+                 and c.role in OBJECT_RELS and c.pron_type != "possessive"), None)
 
 
 def _appos_through_modifier(parsed: ParsedText, head: int, seg: int, by_seg_head: dict) -> Mention | None:
@@ -325,11 +334,11 @@ def _contained_pairs(ms: Sequence[Mention], parses: Sequence[ParsedText]) -> set
     name part is the same person, not a modifier, so a mention attached by one starts no such pair."""
     by_head: dict[tuple[int, int], list[Mention]] = {}
     for m in ms:
-        if m.kind != "zero":
+        if m.kind != MentionKind.ZERO:
             by_head.setdefault((m.seg, m.head), []).append(m)
     out: set[frozenset[str]] = set()
     for m in ms:
-        if m.kind == "zero":
+        if m.kind == MentionKind.ZERO:
             continue
         t = parses[m.seg].tokens[m.head]
         if t.is_root or t.deprel in ("appos", "nmod:appos", "flat", "flat:name", "compound"):
@@ -349,11 +358,11 @@ def _disjoint_arguments(ms: Sequence[Mention], parses: Sequence[ParsedText]) -> 
     describió": whoever described is not the one described, even where both are "she" a sentence earlier)."""
     subjects: dict[tuple[int, int], list[Mention]] = {}
     for m in ms:
-        if m.role in ("nsubj", "nsubj:pass") and m.pron_type != "possessive" and m.clause >= 0:
+        if m.role in SUBJECT_RELS and m.pron_type != "possessive" and m.clause >= 0:
             subjects.setdefault((m.seg, m.clause), []).append(m)
     out: set[frozenset[str]] = set()
     for m in ms:
-        if (m.kind != "pronoun" or m.pron_type != "personal" or m.role in ("nsubj", "nsubj:pass")
+        if (m.kind != MentionKind.PRONOUN or m.pron_type != "personal" or m.role in SUBJECT_RELS
                 or m.clause < 0):
             continue
         for clause in _subject_clauses(parses[m.seg], m.clause):
@@ -366,7 +375,7 @@ def _disjoint_arguments(ms: Sequence[Mention], parses: Sequence[ParsedText]) -> 
 def _intensifier_of(m: Mention, parsed: ParsedText) -> int:
     """The head token of the noun phrase a reflexive pronoun intensifies ("the minister herself", "Wintour
     himself": attached to the noun with no preposition of its own), or -1 where it is no intensifier."""
-    if m.kind != "pronoun" or m.pron_type != "reflexive":
+    if m.kind != MentionKind.PRONOUN or m.pron_type != "reflexive":
         return -1
     t = parsed.tokens[m.head]
     if t.is_root or any(k.deprel == "case" for k in parsed.children(t.i)):
@@ -427,8 +436,8 @@ def _unique_container(words: set[str], names: Sequence[Mention], cl: _Clusters) 
 
 def _different_names(cl: _Clusters, a: Mention, b: Mention) -> bool:
     """Two clusters that each carry a name, and no name in common: two people who share a role noun."""
-    na = {w for m in cl.members(a.id) if m.kind == "name" for w in m.key.split()}
-    nb = {w for m in cl.members(b.id) if m.kind == "name" for w in m.key.split()}
+    na = {w for m in cl.members(a.id) if m.kind == MentionKind.NAME for w in m.key.split()}
+    nb = {w for m in cl.members(b.id) if m.kind == MentionKind.NAME for w in m.key.split()}
     return bool(na) and bool(nb) and not (na & nb)
 
 
@@ -456,9 +465,9 @@ def _relative_subject_head(parsed: ParsedText, clause: int) -> int:
     # The relative pronoun: marked PronType=Rel, or (where a tagger leaves it unmarked, as for "who") a
     # pronoun with no person that opens the clause.
     relative = [k for k in parsed.children(t.i)
-                if k.deprel in ("nsubj", "nsubj:pass") and k.upos == "PRON"
+                if k.deprel in SUBJECT_RELS and k.upos == "PRON"
                 and ("Rel" in (k.feat("PronType") or "") or (k.i == first and not k.feat("Person")))]
-    if not relative or t.deprel not in ("acl:relcl", "relcl", "acl"):
+    if not relative or t.deprel not in ("acl:relcl", "acl"):
         return -1
     return t.head
 
@@ -470,7 +479,7 @@ def _relative_antecedent(parsed: ParsedText, clause: int) -> int:
         if t is None or t.is_root:
             return -1
         # Some pipelines label a relative clause plain acl: its relative pronoun shows what it is.
-        if t.deprel in ("acl:relcl", "relcl") or (t.deprel == "acl" and any(
+        if t.deprel in RELATIVE_CLAUSE_RELS or (t.deprel == "acl" and any(
                 "Rel" in (k.feat("PronType") or "") for k in parsed.children(t.i))):
             return t.head
         t = parsed.tokens[t.head]
@@ -478,7 +487,7 @@ def _relative_antecedent(parsed: ParsedText, clause: int) -> int:
 
 
 # Relations inside a noun phrase: a word attached by one of them is part of its head's phrase.
-NOMINAL_RELS = frozenset({"det", "det:poss", "nmod:poss", "poss", "nmod", "appos", "amod", "flat", "flat:name",
+NOMINAL_RELS = frozenset({"det", "det:poss", "nmod:poss", "nmod", "appos", "amod", "flat", "flat:name",
                           "compound", "nmod:appos", "case", "fixed"})
 
 
@@ -504,7 +513,7 @@ def _set_off(parsed: ParsedText, i: int) -> bool:
     return first > 0 and parsed.tokens[first - 1].text in (",", "(", "-", "–", "—", ":")
 
 
-_ADJUNCTS = ("obl", "advcl", "advmod", "nmod", "dislocated", "discourse", "vocative", "parataxis", "prep", "npadvmod")
+_ADJUNCTS = ("obl", "advcl", "advmod", "nmod", "dislocated", "discourse", "vocative", "parataxis", "prep")
 
 
 def _in_fronted_adjunct(parsed: ParsedText, i: int, clause: int) -> bool:
@@ -536,9 +545,9 @@ def _salience(cand: Mention, m: Mention) -> float:
     score = -0.8 * distance
     if distance == 0:
         score -= min(0.02 * max(m.head - cand.head, 0), 0.4)  # nearer words first within a segment
-    if cand.role in ("nsubj", "nsubj:pass"):
+    if cand.role in SUBJECT_RELS:
         score += 0.6
-    if cand.kind in ("name", "noun"):
+    if cand.kind in NOMINAL_KINDS:
         score += 0.2
     if cand.seg == m.seg and cand.sent == m.sent:
         score += 0.3
@@ -567,8 +576,8 @@ def _pick_antecedent(m, ms, cl, parses, use_gender):
             and c.seg == m.seg
             and c.clause in (m.clause, governing)
             and c.clause >= 0
-            and c.role in ("nsubj", "nsubj:pass")
-            and c.kind in ("name", "noun")
+            and c.role in SUBJECT_RELS
+            and c.kind in NOMINAL_KINDS
         )
         if (_order(c) >= _order(m) and not cataphoric) or m.seg - c.seg > PRONOUN_WINDOW:
             continue
@@ -576,7 +585,7 @@ def _pick_antecedent(m, ms, cl, parses, use_gender):
         # "el padre de su amiga" (the i-within-i condition).
         if containers and any(x.seg == m.seg and x.head in containers for x in cl.members(c.id)):
             continue
-        if c.kind == "pronoun" and c.pron_type == "possessive" and c.seg == m.seg:
+        if c.kind == MentionKind.PRONOUN and c.pron_type == "possessive" and c.seg == m.seg:
             # Two possessives of one sentence may belong to two people ("Ana y sus socios ... sus planes"):
             # an earlier one is the antecedent only when nothing else is ("su sueño ... su carrera").
             if m.pron_type == "possessive" and _order(c) < _order(m) and _compatible(cl.members(c.id), [m],
@@ -591,15 +600,15 @@ def _pick_antecedent(m, ms, cl, parses, use_gender):
         # conjoined verb without a subject shares: "took a ladder and sat on him"), nor, as the subject of a
         # non-finite clause ("allowed her to stay"), with the subject of the clause above.
         if (
-            m.kind == "pronoun"
+            m.kind == MentionKind.PRONOUN
             and m.pron_type == "personal"
             and c.seg == m.seg
-            and c.role in ("nsubj", "nsubj:pass")
+            and c.role in SUBJECT_RELS
         ):
-            if m.role not in ("nsubj", "nsubj:pass") and c.clause in local_subject_clauses:
+            if m.role not in SUBJECT_RELS and c.clause in local_subject_clauses:
                 continue
             if (
-                m.role in ("nsubj", "nsubj:pass")
+                m.role in SUBJECT_RELS
                 and governing == c.clause >= 0
             ):
                 continue
@@ -609,9 +618,9 @@ def _pick_antecedent(m, ms, cl, parses, use_gender):
         # "According to the director's count, she has made..."), or before a semicolon: that joins independent
         # clauses, whatever the parser hung the first one on ("Ana was born in Tarvel; she grew up...").
         if (
-            m.role in ("nsubj", "nsubj:pass")
+            m.role in SUBJECT_RELS
             and c.seg == m.seg
-            and c.kind in ("name", "noun")
+            and c.kind in NOMINAL_KINDS
             and m.clause >= 0
             and c.head in _subtree(parses[m.seg], m.clause)
             and not _in_fronted_adjunct(parses[m.seg], c.head, m.clause)
@@ -639,7 +648,7 @@ def _pick_antecedent(m, ms, cl, parses, use_gender):
             m.pron_type == "possessive"
             and c.seg == m.seg
             and c.clause == m.clause
-            and c.role in ("nsubj", "nsubj:pass")
+            and c.role in SUBJECT_RELS
         ):
             s += 0.4  # possessives lean to the subject of their own clause
         if (
@@ -672,9 +681,9 @@ def _thing_subject_before(m: Mention, best: Mention, mention_tokens: set[tuple[i
     """Whether a subject pronoun that also stands for things has a thing noun as a subject that agrees with it
     in gender and number in its own segment before it or in the segment before, no further back than the
     person picked for it ("La mairie a confirmé que Varel... « ... », a-t-elle ajouté")."""
-    if m.kind != "pronoun" or m.pron_type != "personal" or m.role not in ("nsubj", "nsubj:pass"):
+    if m.kind != MentionKind.PRONOUN or m.pron_type != "personal" or m.role not in SUBJECT_RELS:
         return False
-    if m.gender not in ("fem", "masc"):
+    if m.gender not in BINARY:
         return False
     for seg in (m.seg, m.seg - 1):
         if seg < 0 or seg < best.seg:
@@ -682,7 +691,7 @@ def _thing_subject_before(m: Mention, best: Mention, mention_tokens: set[tuple[i
         for t in parses[seg].tokens:
             if seg == m.seg and t.i >= m.head:
                 break
-            if (t.upos == "NOUN" and t.deprel in ("nsubj", "nsubj:pass") and t.gender == m.gender
+            if (t.upos == "NOUN" and t.deprel in SUBJECT_RELS and t.gender == m.gender
                     and t.feat("Number") == "Sing" and (seg, t.i) not in mention_tokens):
                 return True
     return False
@@ -697,23 +706,20 @@ def _local_possessor(m: Mention, best: Mention, others: Sequence[Mention], cl: _
     such a majority proves nothing about the possessive and keeps it; so does an object whose chain shows the
     other gender too. Only the direct object competes: a person in a prepositional phrase or inside the
     subject ("Ortuño's wife ... made his first appearance") is no rival to the subject for a reader."""
-    if m.pron_type != "possessive" or m.gender not in ("fem", "masc"):
+    if m.pron_type != "possessive" or m.gender not in BINARY:
         return None
     if (best.seg != m.seg or best.sent != m.sent or _order(best) > _order(m)
-            or best.role not in ("nsubj", "nsubj:pass") or best.clause < 0):
+            or best.role not in SUBJECT_RELS or best.clause < 0):
         return None
-    other_gender = "masc" if m.gender == "fem" else "fem"
+    other_gender = Gender.MASC if m.gender == Gender.FEM else Gender.FEM
     said = [mk.gender for x in cl.members(best.id) for mk in x.marks]
     if best.gender != other_gender or said.count(other_gender) <= said.count(m.gender):
         return None
     fitting = [
         c for c in others
         if c.seg == m.seg and c.clause == best.clause and c.role in OBJECT_RELS
-        and _order(best) < _order(c) < _order(m) and c.kind in ("name", "noun")
+        and _order(best) < _order(c) < _order(m) and c.kind in NOMINAL_KINDS
         and other_gender not in _genders(cl.members(c.id))
     ]
     return max(fitting, key=_order) if fitting else None
 
-
-# Direct and indirect objects (UD and ClearNLP labels).
-OBJECT_RELS = ("obj", "dobj", "iobj", "dative")

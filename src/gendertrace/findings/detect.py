@@ -16,8 +16,17 @@ from gendertrace.declared.policy import Policy
 from gendertrace.evidence.resolve import STRENGTH_SCALE, dedupe, resolve_gender
 from gendertrace.mentions.extract import W_PRONOUN
 from gendertrace.model import DocumentStats, Entity, EvidenceItem, Finding, Link, Mention
-
-PREDICATE_RULES = ("predicative with copula", "participle with agreeing auxiliary", "secondary predicate")
+from gendertrace.vocab import (
+    BINARY,
+    FINDING_KINDS,
+    NEVER_FLAGS_ALONE,
+    NOMINAL_KINDS,
+    PREDICATE_RULES,
+    EvidenceKind,
+    FindingKind,
+    Gender,
+    MentionKind,
+)
 
 
 @dataclass(frozen=True)
@@ -42,7 +51,7 @@ def target_references(m: Mention, target_text: str) -> list[Reference]:
         genders = {mk.gender for mk in np_marks}
         if len(genders) == 1:
             start, end = min(mk.start for mk in np_marks), max(mk.end for mk in np_marks)
-            if m.kind == "noun":
+            if m.kind == MentionKind.NOUN:
                 start, end = min(start, m.start), max(end, m.end)  # "la secrétaire": determiner to noun
             refs.append(
                 Reference(
@@ -114,7 +123,7 @@ def detect_findings(
             for m in e.target_mentions:
                 if certainty.get(m.id, 1.0) >= 1.0:
                     chain_refs.setdefault(target_chain_of[m.id], []).extend(
-                        r for r in target_references(m, target_texts[m.seg]) if r.gender in ("fem", "masc")
+                        r for r in target_references(m, target_texts[m.seg]) if r.gender in BINARY
                     )
     for e in entities:
         refs: dict[tuple[int, int, int], Reference] = {}
@@ -123,8 +132,8 @@ def detect_findings(
                 refs.setdefault((r.seg, r.start, r.end), r)
         every = sorted(refs.values(), key=lambda r: (r.seg, r.start))
         every = [r for r in every if _checkable(r.mention, links, e) and not _unmarked_only(r)]
-        ordered = [r for r in every if r.gender in ("fem", "masc")]
-        neutral_refs = [r for r in every if r.gender == "neutral"]
+        ordered = [r for r in every if r.gender in BINARY]
+        neutral_refs = [r for r in every if r.gender == Gender.NEUTRAL]
 
         def reach(r: Reference) -> float:
             # A direct link says how surely the word is about this person; the target chain matters only
@@ -146,7 +155,7 @@ def detect_findings(
         if neutral_refs and policy.neutral_for_binary == "flag":
             # A neutral form where the evidence settles a binary gender: a finding only if the client says so.
             base = source_verdict if source_verdict and source_verdict.confidence >= SOURCE_DECISIVE else None
-            if base and base.gender in ("fem", "masc"):
+            if base and base.gender in BINARY:
                 for r in neutral_refs:
                     conf = base.confidence * reach(r)
                     if conf >= min_confidence:
@@ -154,7 +163,7 @@ def detect_findings(
                         checked += 1
                         findings.append(
                             _finding(
-                                "contradiction",
+                                FindingKind.CONTRADICTION,
                                 r,
                                 base.gender,
                                 e,
@@ -183,7 +192,8 @@ def detect_findings(
                 n_ordered, n_source, n_verdict = nominal
                 by_name = _entity_verdict(r, e, n_ordered, n_source, n_verdict, reach, {}, None, certainty,
                                           None, min_confidence)
-                if (judged_as is not None and judged_as[1] == "inconsistency" and judged_as[0].gender != r.gender
+                if (judged_as is not None and judged_as[1] == FindingKind.INCONSISTENCY
+                        and judged_as[0].gender != r.gender
                         and (by_name is None or by_name[0].gender == r.gender)):
                     anchors.append((r, judged_as[3]))
                 judged_as = by_name
@@ -193,10 +203,10 @@ def detect_findings(
             direct = _direct_verdict(r, links, e)
             if direct is not None and direct[0].confidence * DIRECT_REACH >= min_confidence:
                 own, own_support = direct
-                kept = (judged_as is not None and judged_as[1] == "contradiction"
+                kept = (judged_as is not None and judged_as[1] == FindingKind.CONTRADICTION
                         and judged_as[0].gender == own.gender)
                 if r.gender == own.gender or not kept:
-                    judged_as = (own, "contradiction", own_support, own.confidence * DIRECT_REACH)
+                    judged_as = (own, FindingKind.CONTRADICTION, own_support, own.confidence * DIRECT_REACH)
             if judged_as is None:
                 continue
             verdict, kind, support, conf = judged_as
@@ -206,7 +216,7 @@ def detect_findings(
                 consistent += 1
                 agreed.add((r.seg, r.start, r.end))
                 continue
-            expected = verdict.gender if kind == "contradiction" else None
+            expected = verdict.gender if kind == FindingKind.CONTRADICTION else None
             findings.append(_finding(kind, r, expected, e, conf, support, seg_ids))
             raised.append(findings[-1])
         for r, conf in anchors:
@@ -216,24 +226,24 @@ def detect_findings(
                 if o.gender != r.gender and not _title_only(o) and (o.seg, o.start, o.end) not in flagged:
                     checked += 1
                     judged += 1
-                    findings.append(_finding("inconsistency", o, None, e, conf, r.marks, seg_ids))
+                    findings.append(_finding(FindingKind.INCONSISTENCY, o, None, e, conf, r.marks, seg_ids))
                     raised.append(findings[-1])
         for r, finding in _tie_partners(ordered, raised, agreed):
             # An even split has no majority: the words on the other side are as suspect as the flagged one,
             # and the finding already takes them to be about this person.
             checked += 1
             judged += 1
-            findings.append(_finding("inconsistency", r, None, e, finding.confidence,
+            findings.append(_finding(FindingKind.INCONSISTENCY, r, None, e, finding.confidence,
                                      [mk for o in ordered if o.gender != r.gender for mk in o.marks], seg_ids))
         per_entity[e.id] = (judged, consistent - consistent_before)
         # A source that only uses neutral forms ("they") does not speak to a binary gender either.
-        binary_source = any(x.gender in ("fem", "masc") for x in source_ev)
+        binary_source = any(x.gender in BINARY for x in source_ev)
         if not binary_source and judged == 0 and _entity_kind(e) in policy.assumptions:
             r = ordered[0]
-            findings.append(_finding("assumption", r, None, e, 0.5 * reach(r), (), seg_ids))
+            findings.append(_finding(FindingKind.ASSUMPTION, r, None, e, 0.5 * reach(r), (), seg_ids))
     findings.sort(key=lambda f: (f.seg, f.start))
     counts = {
-        k: sum(1 for f in findings if f.kind == k) for k in ("contradiction", "inconsistency", "assumption")
+        k: sum(1 for f in findings if f.kind == k) for k in FINDING_KINDS
     }
     stats = DocumentStats(
         segments=len(target_texts),
@@ -252,9 +262,9 @@ def _tie_partners(ordered: Sequence[Reference], raised: Sequence[Finding],
     them were flagged as inconsistent (the others' attachment to the person was less sure), the unflagged
     words of the split, each with the most confident finding raised against the other side. Not where any
     finding of the entity is a contradiction."""
-    if not raised or any(f.kind != "inconsistency" for f in raised):
+    if not raised or any(f.kind != FindingKind.INCONSISTENCY for f in raised):
         return []  # where the source speaks, it decides: a split in the target is no tie
-    fem = sum(1 for r in ordered if r.gender == "fem")
+    fem = sum(1 for r in ordered if r.gender == Gender.FEM)
     if fem * 2 != len(ordered):
         return []
     flagged = {(f.seg, f.start, f.end) for f in raised} | agreed
@@ -272,7 +282,7 @@ def _entity_verdict(r: Reference, e: Entity, ordered, source_ev, source_verdict,
                     target_chain_of, certainty, segment_evidence, min_confidence: float):
     """(verdict, kind, support, confidence) from the entity's evidence, or None where it is silent."""
     if source_verdict and source_verdict.confidence >= max(min_confidence, SOURCE_DECISIVE):
-        verdict, kind, support = source_verdict, "contradiction", source_ev
+        verdict, kind, support = source_verdict, FindingKind.CONTRADICTION, source_ev
     else:
         pool = {(o.seg, o.start, o.end): o for o in ordered}
         if target_chain_of and certainty.get(r.mention.id, 1.0) >= 1.0:
@@ -283,14 +293,14 @@ def _entity_verdict(r: Reference, e: Entity, ordered, source_ev, source_verdict,
             return None
         verdict = _pooled_verdict(source_ev, others)
         leaning = source_verdict.gender if source_verdict else None
-        kind = "contradiction" if leaning == verdict.gender else "inconsistency"
+        kind = FindingKind.CONTRADICTION if leaning == verdict.gender else FindingKind.INCONSISTENCY
         support = [x for x in source_ev if x.gender == verdict.gender] + [
             mk for mk in others if mk.gender == verdict.gender
         ]
     conf = verdict.confidence * reach(r)
     # Only for words tied to no source person: a linked word's own entity has spoken (even if silently).
     if (
-        (conf < min_confidence or verdict.gender not in ("fem", "masc"))
+        (conf < min_confidence or verdict.gender not in BINARY)
         and not e.source_mentions
         and segment_evidence
     ):
@@ -298,13 +308,13 @@ def _entity_verdict(r: Reference, e: Entity, ordered, source_ev, source_verdict,
         seg_verdict = resolve_gender(seg_ev) if seg_ev else None
         if (
             seg_verdict
-            and seg_verdict.gender in ("fem", "masc")
+            and seg_verdict.gender in BINARY
             and seg_verdict.confidence
             >= 0.99 * (1.0 - math.exp(-sum(e.weight for e in seg_ev) / STRENGTH_SCALE))
         ):
-            verdict, kind, support = seg_verdict, "contradiction", list(seg_ev)
+            verdict, kind, support = seg_verdict, FindingKind.CONTRADICTION, list(seg_ev)
             conf = seg_verdict.confidence * SEGMENT_FACTOR
-    if verdict.gender not in ("fem", "masc") or conf < min_confidence:
+    if verdict.gender not in BINARY or conf < min_confidence:
         return None
     return verdict, kind, support, conf
 
@@ -322,15 +332,15 @@ def _direct_verdict(r: Reference, links: dict[str, Link], e: Entity):
     if via is None or not via.marks:
         return None
     marks = list(dedupe(via.marks))
-    if (r.mention.kind == "pronoun" and r.mention.animate and not via.animate
+    if (r.mention.kind == MentionKind.PRONOUN and r.mention.animate and not via.animate
             and r.mention.pron_type == via.pron_type):
         # A source pronoun that may stand for a thing ("ihn", "lo") translated by one of the same kind that only
         # stands for a person ("him") is about a person, and then its gender is the person's: it counts in
         # full. (A possessive "her" paired with an object "lo" is more likely a misalignment.)
-        marks = [replace(mk, weight=W_PRONOUN) if mk.kind == "pronoun" and mk.side == "source" else mk
+        marks = [replace(mk, weight=W_PRONOUN) if mk.kind == EvidenceKind.PRONOUN and mk.side == "source" else mk
                  for mk in marks]
     verdict = resolve_gender(marks)
-    if verdict.gender not in ("fem", "masc"):
+    if verdict.gender not in BINARY:
         return None
     return verdict, [mk for mk in marks if mk.gender == verdict.gender]
 
@@ -345,7 +355,7 @@ def _judge_declared(
     findings: list[Finding],
 ) -> tuple[int, int]:
     """Every target form of a declared person against the declaration; returns (checked, consistent)."""
-    declared = [x for x in e.evidence if x.kind == "declared"]
+    declared = [x for x in e.evidence if x.kind == EvidenceKind.DECLARED]
     strength = resolve_gender(declared).confidence
     n_checked = n_consistent = 0
     flagged: list[Reference] = []
@@ -356,7 +366,7 @@ def _judge_declared(
             n_checked += 1
             n_consistent += 1
             continue
-        if e.declared == ("neutral",) and not policy.gendered_for_nonbinary:
+        if e.declared == (Gender.NEUTRAL,) and not policy.gendered_for_nonbinary:
             continue  # the client accepts gendered forms for this person
         conf = strength * reach(r)
         if conf < min_confidence:
@@ -365,7 +375,7 @@ def _judge_declared(
         flagged.append(r)
         findings.append(
             _finding(
-                "contradiction",
+                FindingKind.CONTRADICTION,
                 r,
                 e.declared[0],
                 e,
@@ -378,12 +388,9 @@ def _judge_declared(
     return n_checked, n_consistent
 
 
-NOMINAL_KINDS = ("name", "noun")
-
-
 def _title_only(r: Reference) -> bool:
     """Whether the reference is an honorific and nothing else ("Mr.", "Mme")."""
-    return all(mk.kind == "title" for mk in r.marks)
+    return all(mk.kind == EvidenceKind.TITLE for mk in r.marks)
 
 
 def _nominal_view(e: Entity, ordered: Sequence[Reference], source_ev: Sequence[EvidenceItem]):
@@ -404,7 +411,7 @@ def _entity_kind(e: Entity) -> str:
 
 def _unmarked_only(r: Reference) -> bool:
     """A bare generic masculine ("fue elegida presidente") is evidence, but never flagged alone."""
-    return all(mk.rule == "generic masculine noun" for mk in r.marks)
+    return all(mk.rule in NEVER_FLAGS_ALONE for mk in r.marks)
 
 
 def _checkable(m: Mention, links: dict[str, Link], e: Entity) -> bool:
@@ -415,16 +422,16 @@ def _checkable(m: Mention, links: dict[str, Link], e: Entity) -> bool:
     if link is None or link.method != "alignment":
         return False
     via = next((s for s in e.source_mentions if s.id == link.via), None)
-    return via is not None and via.kind == "pronoun" and via.case in ("acc", "dat")
+    return via is not None and via.kind == MentionKind.PRONOUN and via.case in ("acc", "dat")
 
 
 def _finding(
     kind, r: Reference, expected, e: Entity, conf: float, support, seg_ids, basis: str = "the source says"
 ) -> Finding:
     found = r.gender
-    if kind == "contradiction":
+    if kind == FindingKind.CONTRADICTION:
         msg = f"{r.text!r} makes {e.label or e.id} {found}; {basis} {expected}"
-    elif kind == "inconsistency":
+    elif kind == FindingKind.INCONSISTENCY:
         msg = f"{r.text!r} makes {e.label or e.id} {found}; elsewhere the target says otherwise"
     else:
         msg = f"{r.text!r} makes {e.label or e.id} {found}; nothing in the source says so"

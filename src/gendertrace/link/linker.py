@@ -14,14 +14,13 @@ from dataclasses import replace
 from gendertrace.coref.sieves import Resolution
 from gendertrace.link.align import Alignment
 from gendertrace.model import Link, Mention, ParsedText
+from gendertrace.vocab import CLAUSE_FUNCTION_RELS, SUBJECT_RELS, MentionKind
 
 CONF_NAME = 1.0
 CONF_LEXICON = 0.95
 CONF_ALIGNED = 0.85
 CONF_PROJECTED = 0.85
 CONF_CHAIN = 0.8
-SUBJECTS = ("nsubj", "nsubj:pass")
-CLAUSE_FUNCTION_RELS = ("cop", "aux", "aux:pass", "aux:tense")
 
 
 def _clause_of(parsed: ParsedText, i: int) -> int:
@@ -44,20 +43,20 @@ def link_mentions(
     by_token: dict[tuple[int, int], Mention] = {}
     subject_of: dict[tuple[int, int], Mention] = {}
     for m in src_mentions:
-        if m.kind != "zero":
+        if m.kind != MentionKind.ZERO:
             for t in m.tokens:
                 by_token[(m.seg, t)] = m
-        if m.role in SUBJECTS and m.pron_type != "possessive" and m.clause >= 0:
+        if m.role in SUBJECT_RELS and m.pron_type != "possessive" and m.clause >= 0:
             # Overt subjects win over a zero subject of the same clause (there should be none, but parses vary).
             key = (m.seg, m.clause)
             if key not in subject_of or subject_of[key].kind == "zero":
                 subject_of[key] = m
-    src_names = [m for m in src_mentions if m.kind == "name"]
+    src_names = [m for m in src_mentions if m.kind == MentionKind.NAME]
     src_by_id = {m.id: m for m in src_mentions}
     tgt_subjects: dict[tuple[int, int], list[Mention]] = {}
     for m in tgt_mentions:
-        if m.role in SUBJECTS and m.pron_type != "possessive" and m.clause >= 0:
-            tgt_subjects.setdefault((m.seg, m.clause if m.kind != "zero" else m.head), []).append(m)
+        if m.role in SUBJECT_RELS and m.pron_type != "possessive" and m.clause >= 0:
+            tgt_subjects.setdefault((m.seg, m.clause if m.kind != MentionKind.ZERO else m.head), []).append(m)
     chain = src_res.chain_of
     links: dict[str, Link] = {}
 
@@ -68,17 +67,17 @@ def link_mentions(
 
     for m in tgt_mentions:
         link = None
-        if m.kind == "name":
+        if m.kind == MentionKind.NAME:
             link = _name_link(m, src_names, chain)
-        if link is None and m.kind == "noun":
+        if link is None and m.kind == MentionKind.NOUN:
             cands = [
                 s
                 for s in src_mentions
-                if s.seg == m.seg and s.kind == "noun" and m.text.lower() in lexicon.get(s.text.lower(), ())
+                if s.seg == m.seg and s.kind == MentionKind.NOUN and m.text.lower() in lexicon.get(s.text.lower(), ())
             ]
             if len({chain[c.id] for c in cands}) == 1:
                 link = Link(m.id, chain[cands[0].id], "lexicon", CONF_LEXICON, cands[0].id)
-        if link is None and m.kind != "zero":
+        if link is None and m.kind != MentionKind.ZERO:
             via = {by_token[(m.seg, i)] for i in aligned_sources(m.seg, m.tokens) if (m.seg, i) in by_token}
             if m.pron_type == "possessive":
                 # "his daughter" / "su hija": a possessive aligned to the possessed noun is not about it.
@@ -90,17 +89,17 @@ def link_mentions(
             hits = {chain[v.id] for v in via}
             if len(hits) == 1:
                 link = Link(m.id, hits.pop(), "alignment", CONF_ALIGNED, min(via, key=lambda v: v.start).id)
-        subject = (m.role in SUBJECTS or m.kind == "zero") and m.pron_type != "possessive"
+        subject = (m.role in SUBJECT_RELS or m.kind == MentionKind.ZERO) and m.pron_type != "possessive"
         if link is None and subject:
             link = _projected(m, tgt_parses[m.seg], src_parses[m.seg], aligned_sources, subject_of, chain)
-        elif link is not None and subject and m.kind == "pronoun" and m.gender is not None:
+        elif link is not None and subject and m.kind == MentionKind.PRONOUN and m.gender is not None:
             # A word aligner pairs pronouns by their forms, so a subject pronoun of the wrong gender tends to be
             # paired with a source pronoun of its own gender elsewhere in the sentence ("he assured that she
             # ..." / "él aseguró que él..."). Where the source pronoun it was paired with has its gender, is the
             # subject of a clause whose translation has a subject of its own, and is the subject of none of the
             # source clauses aligned to the pronoun's clause, which have one subject, the clause structure decides.
             via_m = src_by_id[link.via]
-            if (via_m.gender == m.gender and via_m.kind == "pronoun"
+            if (via_m.gender == m.gender and via_m.kind == MentionKind.PRONOUN
                     and _translated_with_other_subject(via_m, m, src_parses[m.seg], tgt_subjects, alignments)):
                 subjects = _aligned_subjects(m, tgt_parses[m.seg], src_parses[m.seg], aligned_sources,
                                              subject_of, chain)
@@ -120,14 +119,14 @@ def link_mentions(
     # resolution: "el director de Ruiz, Ana Ruiz" goes where "Ana Ruiz" goes, whatever the aligner paired
     # "director" with.
     for group in members.values():
-        named = {links[o.id].source_chain for o in group if o.kind == "name" and o.id in links
+        named = {links[o.id].source_chain for o in group if o.kind == MentionKind.NAME and o.id in links
                  and links[o.id].method == "name"}
         if len(named) != 1:
             continue
         (target_chain,) = named
         for o in group:
             link = links.get(o.id)
-            if (o.kind == "noun" and o.id not in tgt_res.antecedent and link is not None
+            if (o.kind == MentionKind.NOUN and o.id not in tgt_res.antecedent and link is not None
                     and link.method in ("alignment", "projection") and link.source_chain != target_chain):
                 links[o.id] = Link(o.id, target_chain, "chain", CONF_CHAIN)
 
@@ -159,7 +158,7 @@ def _translated_with_other_subject(via: Mention, m: Mention, src_parsed: ParsedT
                                    tgt_subjects: dict[tuple[int, int], list[Mention]], alignments) -> bool:
     """Whether the clause the source subject `via` belongs to is aligned to a target clause whose subject is a
     mention other than `m`: then `via` is that subject's counterpart, and `m` only shares its form."""
-    if via.clause < 0 or via.role not in SUBJECTS:
+    if via.clause < 0 or via.role not in SUBJECT_RELS:
         return False
     al = alignments[m.seg] if m.seg < len(alignments) else frozenset()
     verbs = {via.clause} | {k.i for k in src_parsed.children(via.clause) if k.deprel in CLAUSE_FUNCTION_RELS}
@@ -169,11 +168,11 @@ def _translated_with_other_subject(via: Mention, m: Mention, src_parsed: ParsedT
 
 def _aligned_subjects(m, tgt_parsed, src_parsed, aligned_sources, subject_of, chain) -> dict[str, Mention]:
     """The subjects of the source clauses aligned to the target mention's clause, by source chain."""
-    clause = m.clause if m.kind != "zero" else m.head
+    clause = m.clause if m.kind != MentionKind.ZERO else m.head
     if clause < 0:
         return {}
     verbs = [clause] + [k.i for k in tgt_parsed.children(clause) if k.deprel in CLAUSE_FUNCTION_RELS]
-    if m.kind == "zero":
+    if m.kind == MentionKind.ZERO:
         verbs += list(m.tokens)
     subjects = {}
     for i in aligned_sources(m.seg, verbs):

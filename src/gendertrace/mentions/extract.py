@@ -14,11 +14,19 @@ from dataclasses import replace
 from gendertrace.model import EvidenceItem, Mention, ParsedText, Side, Token
 from gendertrace.rules import LanguageRules
 from gendertrace.rules.loader import pronoun_key
-
-SUBJECT_RELS = {"nsubj", "nsubj:pass"}
-NAME_LINK_RELS = {"flat", "flat:name", "compound", "appos"}
-# Relations that mean a clause already has a subject, overt or expletive.
-SUBJECT_LIKE = {"nsubj", "nsubj:pass", "csubj", "csubj:pass", "expl", "expl:pass", "expl:impers", "expl:subj"}
+from gendertrace.vocab import (
+    BINARY,
+    NAME_LINK_RELS,
+    NOMINAL_KINDS,
+    RELATIVE_CLAUSE_RELS,
+    SUBJECT_LIKE_RELS,
+    SUBJECT_RELS,
+    EvidenceKind,
+    Gender,
+    MentionKind,
+    NeutralRule,
+    Rule,
+)
 
 # Weights of the kinds of marks (common practice, no source; tuned on the benchmark, see docs/benchmarks.md).
 W_PRONOUN = 1.0
@@ -114,7 +122,7 @@ def _unlabelled_speakers(parsed: ParsedText, speech_verbs: frozenset[str]) -> se
     if not speech_verbs:
         return out
     for t in parsed.tokens:
-        if (t.upos == "PROPN" and not t.ent and t.deprel in ("nsubj", "nsubj:pass") and not t.is_root
+        if (t.upos == "PROPN" and not t.ent and t.deprel in SUBJECT_RELS and not t.is_root
                 and parsed.tokens[t.head].lemma.lower() in speech_verbs):
             out.add(t.i)
             out.update(k.i for k in parsed.children(t.i)
@@ -164,7 +172,7 @@ def extract_mentions(
     spans = [
         sp
         for sp in _name_spans(parsed, known, rules.speech_verbs)
-        if not any(f.gender == "neutral" for i in sp for f in rules.pronoun(toks[i].text))
+        if not any(f.gender == Gender.NEUTRAL for i in sp for f in rules.pronoun(toks[i].text))
         and not any(toks[i].upos == "PRON" and rules.pronoun(toks[i].text) for i in sp)
     ]
     for span in spans:
@@ -174,14 +182,16 @@ def extract_mentions(
         while words and rules.honorific(words[0].text):
             title_marks.append(
                 _mark(
-                    side, seg, seg_id, words[0], rules.honorific(words[0].text), "title", W_TITLE, "honorific"
+                    side, seg, seg_id, words[0], rules.honorific(words[0].text), EvidenceKind.TITLE, W_TITLE,
+                    Rule.HONORIFIC
                 )
             )
             words = words[1:]
         # So is a gendered person noun there ("King Aldric", "Sister Maren"): the recogniser often takes the
         # title into the name. Only nouns whose form alone shows the gender count (not a generic masculine).
         while len(words) > 1 and words[0].text[:1].isupper() and (title := _title_noun_gender(words[0].text, rules)):
-            title_marks.append(_mark(side, seg, seg_id, words[0], title, "lexical", W_LEXICAL, "gendered noun"))
+            title_marks.append(_mark(side, seg, seg_id, words[0], title,
+                                     EvidenceKind.LEXICAL, W_LEXICAL, Rule.GENDERED_NOUN))
             words = words[1:]
         if not words:
             continue
@@ -198,7 +208,7 @@ def extract_mentions(
                 seg=seg,
                 head=head,
                 tokens=tuple(ids),
-                kind="name",
+                kind=MentionKind.NAME,
                 text=parsed.text[words[0].start : words[-1].end],
                 start=words[0].start,
                 end=words[-1].end,
@@ -238,38 +248,39 @@ def extract_mentions(
         if t.i in noun_like:
             gender, counterpart = rules.noun_counterpart(t.text)
             marks = []
-            if gender == "fem" or (gender == "masc" and not rules.articles):
+            if gender == Gender.FEM or (gender == Gender.MASC and not rules.articles):
                 # Languages without gendered articles (English) have only inherently gendered nouns here.
-                marks.append(_mark(side, seg, seg_id, t, gender, "lexical", W_LEXICAL, "gendered noun"))
-            elif gender == "masc":
+                marks.append(_mark(side, seg, seg_id, t, gender, EvidenceKind.LEXICAL, W_LEXICAL, Rule.GENDERED_NOUN))
+            elif gender == Gender.MASC:
                 rule = (
-                    "generic masculine noun"
+                    Rule.GENERIC_MASCULINE_NOUN
                     if t.text.lower() in rules.generic_masculine
-                    else "masculine noun form"
+                    else Rule.MASCULINE_NOUN_FORM
                 )
-                marks.append(_mark(side, seg, seg_id, t, gender, "lexical", W_UNMARKED_NOUN, rule))
+                marks.append(_mark(side, seg, seg_id, t, gender, EvidenceKind.LEXICAL, W_UNMARKED_NOUN, rule))
             marks += _honorifics_before(parsed, t.i, [t.i], rules, side, seg, seg_id)
             marks += _np_marks(parsed, t.i, rules, side, seg, seg_id, noun_form=True)
-            if not any(mk.rule == "determiner agreement" for mk in marks) and t.i > 0:
+            if not any(mk.rule == Rule.DETERMINER_AGREEMENT for mk in marks) and t.i > 0:
                 before = toks[t.i - 1]
                 g = _article_form(before, rules)
-                if g in ("fem", "masc"):
+                if g in BINARY:
                     marks.append(
                         _mark(
-                            side, seg, seg_id, before, g, "morphology", W_DETERMINER, "determiner agreement"
+                            side, seg, seg_id, before, g, EvidenceKind.MORPHOLOGY, W_DETERMINER,
+                            Rule.DETERMINER_AGREEMENT
                         )
                     )
             role, clause = _role_and_clause(parsed, t.i)
             marks += _predicate_marks(parsed, t.i, role, clause, rules, side, seg, seg_id, zero=False)
             if gender == "epicene":
                 marks = []  # grammatical gender only: "la persona" may be anyone
-            masc_key = counterpart if gender == "fem" else t.text.lower()
+            masc_key = counterpart if gender == Gender.FEM else t.text.lower()
             out.append(_noun_mention(prefix, side, seg, t, role, clause, masc_key, marks))
             continue
         # Singular forms marking no binary gender ("niñe", "l'étudiant·e"): a person noun, a neutral mark.
         if _neutral_word(parsed, t, rules) == "sing" and t.upos in ("NOUN", "PROPN"):
             role, clause = _role_and_clause(parsed, t.i)
-            mark = _mark(side, seg, seg_id, t, "neutral", "morphology", W_LEXICAL, NEUTRAL_FORM_RULE)
+            mark = _mark(side, seg, seg_id, t, Gender.NEUTRAL, EvidenceKind.MORPHOLOGY, W_LEXICAL, NEUTRAL_FORM_RULE)
             out.append(_noun_mention(prefix, side, seg, t, role, clause, t.text.lower(), [mark]))
             continue
         # "cette dernière", "esta última" (the latter): a demonstrative's nominalised adjective takes up a
@@ -278,10 +289,11 @@ def extract_mentions(
         speaker = _demonstrative_speaker(parsed, t, rules)
         if speaker or _latter(parsed, t, rules):
             role, clause = _role_and_clause(parsed, t.i)
-            marks = [_mark(side, seg, seg_id, t, t.gender, "pronoun", W_PRONOUN if speaker else W_CLITIC,
-                           "demonstrative speaker" if speaker else "demonstrative latter")]
+            marks = [_mark(side, seg, seg_id, t, t.gender, EvidenceKind.PRONOUN, W_PRONOUN if speaker else W_CLITIC,
+                           Rule.DEMONSTRATIVE_SPEAKER if speaker else Rule.DEMONSTRATIVE_LATTER)]
             marks += _predicate_marks(parsed, t.i, role, clause, rules, side, seg, seg_id, zero=False)
-            out.append(Mention(id=f"{prefix}{t.i}", side=side, seg=seg, head=t.i, tokens=(t.i,), kind="pronoun",
+            out.append(Mention(id=f"{prefix}{t.i}", side=side, seg=seg, head=t.i, tokens=(t.i,),
+                               kind=MentionKind.PRONOUN,
                                text=t.text, start=t.start, end=t.end, number="sing", person="3",
                                pron_type="personal", role=role, clause=clause, key=t.text.lower(),
                                marks=tuple(marks), sent=t.sent, animate=speaker))
@@ -290,7 +302,7 @@ def extract_mentions(
         if t.i + 1 in noun_like and rules.article_gender(t.text) is not None:
             continue
         neutral_form = (
-            any(f.gender == "neutral" for f in rules.pronoun(t.text)) and t.deprel in NEUTRAL_PRONOUN_RELS
+            any(f.gender == Gender.NEUTRAL for f in rules.pronoun(t.text)) and t.deprel in NEUTRAL_PRONOUN_RELS
         )
         # An inverted subject clitic ("dit-elle", "a-t-il") is a pronoun and the subject of the verb before it,
         # whatever the tagger took it for.
@@ -310,7 +322,7 @@ def extract_mentions(
             # An agreeing intensifier shows the person's gender even on an ungendered pronoun: "de sí misma",
             # "ella misma", "sé stessa".
             intensifiers = [k for k in parsed.children(t.i) if k.deprel == "amod" and k.upos in ("ADJ", "DET")
-                            and k.gender in ("fem", "masc") and not _is_plural(k)]
+                            and k.gender in BINARY and not _is_plural(k)]
             if form.type == "reflexive" and form.gender is None and not intensifiers:
                 continue  # "se", "sí": mostly impersonal or passive markers, and never gendered
             if is_expletive(parsed, t, rules):
@@ -320,17 +332,19 @@ def extract_mentions(
             marks = []
             if singular_they:
                 # Kept only where its chain has one named or singular antecedent (see singular_they_ok).
-                marks.append(_mark(side, seg, seg_id, t, "neutral", "pronoun", W_PRONOUN, SINGULAR_THEY_RULE))
+                marks.append(_mark(side, seg, seg_id, t, Gender.NEUTRAL,
+                                   EvidenceKind.PRONOUN, W_PRONOUN, SINGULAR_THEY_RULE))
             elif form.gender and not _gender_doublet(parsed, t, rules):
                 weight = W_PRONOUN if form.animate else W_CLITIC
                 marks.append(
-                    _mark(side, seg, seg_id, t, form.gender, "pronoun", weight, f"{form.type} pronoun")
+                    _mark(side, seg, seg_id, t, form.gender, EvidenceKind.PRONOUN, weight, Rule.pronoun(form.type))
                 )
             elif form.case == "acc" and (part := _participle_after_clitic(parsed, t)) is not None:
                 # "l'ha descritta", "elle l'a vue": the participle shows the elided clitic's gender.
-                marks.append(_mark(side, seg, seg_id, part, part.gender, "agreement", W_CLITIC,
-                                   "participle agreeing with an object clitic"))
-            marks += [_mark(side, seg, seg_id, k, k.gender, "agreement", W_ADJECTIVE, "agreeing intensifier")
+                marks.append(_mark(side, seg, seg_id, part, part.gender, EvidenceKind.AGREEMENT, W_CLITIC,
+                                   Rule.OBJECT_CLITIC_PARTICIPLE))
+            marks += [_mark(side, seg, seg_id, k, k.gender,
+                            EvidenceKind.AGREEMENT, W_ADJECTIVE, Rule.AGREEING_INTENSIFIER)
                       for k in intensifiers]
             role, clause = _role_and_clause(parsed, t.i)
             if inverted_verb >= 0:
@@ -348,7 +362,7 @@ def extract_mentions(
                     seg=seg,
                     head=t.i,
                     tokens=(t.i,),
-                    kind="pronoun",
+                    kind=MentionKind.PRONOUN,
                     text=t.text,
                     start=t.start,
                     end=t.end,
@@ -368,38 +382,34 @@ def extract_mentions(
     if rules.pro_drop:
         out += _zero_subjects(parsed, seg, seg_id, side, rules, prefix, quoted)
     out = [replace(m, quoted=True) if m.tokens and m.tokens[0] in quoted else m for m in out]
-    out.sort(key=lambda m: (m.start, m.kind == "zero"))
+    out.sort(key=lambda m: (m.start, m.kind == MentionKind.ZERO))
     return out
 
 
-SINGULAR_THEY_RULE = "singular they"
-NEUTRAL_FORM_RULE = "neutral form"
-# Relations in which a word the tagger did not call a pronoun still stands as one (UD and ClearNLP labels).
+SINGULAR_THEY_RULE = Rule.SINGULAR_THEY
+NEUTRAL_FORM_RULE = Rule.NEUTRAL_FORM
+# Relations in which a word the tagger did not call a pronoun still stands as one (UD; "pobj" is the English
+# parser's prepositional object, which has no UD counterpart of its shape).
 NEUTRAL_PRONOUN_RELS = {
     "nsubj",
     "nsubj:pass",
-    "nsubjpass",
     "obj",
-    "dobj",
     "iobj",
     "obl",
     "pobj",
     "nmod:poss",
-    "poss",
-    "dative",
     "root",
     "conj",
     "appos",
     "expl",
     "dep",
-    "npadvmod",
     "compound",
 }
 
 
 def _neutral_form(t: Token, rules: LanguageRules):
-    forms = [f for f in rules.pronoun(t.text) if f.gender == "neutral"]
-    poss = t.deprel in ("nmod:poss", "poss", "det", "compound")  # "zir years": before the possessed noun
+    forms = [f for f in rules.pronoun(t.text) if f.gender == Gender.NEUTRAL]
+    poss = t.deprel in ("nmod:poss", "det", "compound")  # "zir years": before the possessed noun
     return next((f for f in forms if (f.type == "possessive") == poss), forms[0] if forms else None)
 
 
@@ -430,8 +440,8 @@ def neutral_forms(parsed: ParsedText, rules: LanguageRules) -> list[tuple[int, i
     """
     toks, out = parsed.tokens, []
     for t in toks:
-        if any(f.gender == "neutral" for f in rules.pronoun(t.text)):
-            out.append((t.start, t.end, t.text, "neutral pronoun"))
+        if any(f.gender == Gender.NEUTRAL for f in rules.pronoun(t.text)):
+            out.append((t.start, t.end, t.text, NeutralRule.PRONOUN))
         elif _neutral_word(parsed, t, rules):
             a, b = t.start, t.start
             text = parsed.text
@@ -443,7 +453,7 @@ def neutral_forms(parsed: ParsedText, rules: LanguageRules) -> list[tuple[int, i
             continue
         a, b = toks[t.i - 1], toks[t.i + 1]
         if _counterparts(a.text.lower(), b.text.lower(), rules):
-            out.append((a.start, b.end, parsed.text[a.start : b.end], "doubled form"))
+            out.append((a.start, b.end, parsed.text[a.start : b.end], NeutralRule.DOUBLED))
     return sorted(out)
 
 
@@ -456,10 +466,10 @@ def _counterparts(a: str, b: str, rules: LanguageRules) -> bool:
         if rules.article_counterpart(x) == y:
             return True
         gx, gy = _form_gender(x, rules), _form_gender(y, rules)
-        if {gx, gy} == {"fem", "masc"} and not rules.noun_genders.get(x) and not rules.noun_genders.get(y):
+        if {gx, gy} == BINARY and not rules.noun_genders.get(x) and not rules.noun_genders.get(y):
             return True  # "los y las", "el o la": determiners of both genders
         entry = rules.noun_genders.get(x)
-        if entry and entry[0] == "masc" and entry[1] == y:
+        if entry and entry[0] == Gender.MASC and entry[1] == y:
             return True
         for m_end, f_end in (("os", "as"), ("o", "a"), ("s", "es"), ("", "e")):
             if len(x) > 3 and x.endswith(m_end) and y == x[: len(x) - len(m_end)] + f_end:
@@ -478,7 +488,7 @@ def singular_they_ok(m: Mention, chain: list[Mention], parses: list[ParsedText])
     """A 'they' mention is about one person when its chain holds a named or singular noun antecedent, no
     plural nominal subject and no coordinated persons stand between them (from the antecedent's sentence on),
     and (on the source side) the chain has no gendered pronoun of its own."""
-    antecedents = [c for c in chain if c.kind in ("name", "noun") and (c.seg, c.start) < (m.seg, m.start)]
+    antecedents = [c for c in chain if c.kind in NOMINAL_KINDS and (c.seg, c.start) < (m.seg, m.start)]
     if not antecedents:
         return False
     a = antecedents[-1]
@@ -487,14 +497,14 @@ def singular_they_ok(m: Mention, chain: list[Mention], parses: list[ParsedText])
             if (k, t.start) >= (m.seg, m.start) or (k == a.seg and t.sent < parses[k].tokens[a.head].sent):
                 continue  # from the antecedent's sentence up to the pronoun
             plural = t.upos in ("NOUN", "PROPN") and t.feat("Number") == "Plur"
-            if plural and t.deprel in ("nsubj", "nsubj:pass", "nsubjpass"):
+            if plural and t.deprel in SUBJECT_RELS:
                 return False  # "the engineers arrived": plural they is as likely
-            if plural and any(c.deprel in ("acl:relcl", "relcl") for c in parses[k].children(t.i)):
+            if plural and any(c.deprel in RELATIVE_CLAUSE_RELS for c in parses[k].children(t.i)):
                 return False  # "in photographs that looked as if they were old": they are the photographs
             if t.deprel == "conj" and t.upos in ("NOUN", "PROPN") and t.head == a.head and k == a.seg:
                 return False  # "Ana and Luis ... they"
     if m.side == "source" and any(
-        mk.kind == "pronoun" and mk.gender in ("fem", "masc") for c in chain for mk in c.marks
+        mk.kind == EvidenceKind.PRONOUN and mk.gender in BINARY for c in chain for mk in c.marks
     ):
         return False
     return True
@@ -555,9 +565,9 @@ def _demonstrative_speaker(parsed: ParsedText, t: Token, rules: LanguageRules) -
     return (
         t.upos == "PRON"
         and t.feat("PronType") == "Dem"
-        and t.gender in ("fem", "masc")
+        and t.gender in BINARY
         and not _is_plural(t)
-        and t.deprel in ("nsubj", "nsubj:pass")
+        and t.deprel in SUBJECT_RELS
         and not t.is_root
         and parsed.tokens[t.head].lemma.lower() in rules.speech_verbs
     )
@@ -570,7 +580,7 @@ def _latter(parsed: ParsedText, t: Token, rules: LanguageRules) -> bool:
         t.text.lower() in rules.latter_words
         and t.upos in ("ADJ", "NOUN", "PRON")
         and not t.deprel.startswith(("amod", "det", "nmod", "compound"))
-        and t.gender in ("fem", "masc")
+        and t.gender in BINARY
         and not _is_plural(t)
         and any(k.deprel == "det" and k.i < t.i and k.feat("PronType") == "Dem" for k in parsed.children(t.i))
     )
@@ -593,7 +603,7 @@ def _participle_after_clitic(parsed: ParsedText, t: Token) -> Token | None:
     if t.is_root or not t.deprel.startswith("obj") or t.head < t.i:
         return None
     head = parsed.tokens[t.head]
-    if head.participle and head.gender in ("fem", "masc") and not _is_plural(head):
+    if head.participle and head.gender in BINARY and not _is_plural(head):
         return head
     return None
 
@@ -659,8 +669,9 @@ def _noun_modifier(parsed: ParsedText, t: Token, rules: LanguageRules) -> bool:
 def _noun_mention(prefix, side, seg, t: Token, role: str, clause: int, key: str, marks) -> Mention:
     """A singular person noun of one token."""
     return Mention(
-        id=f"{prefix}{t.i}", side=side, seg=seg, head=t.i, tokens=(t.i,), kind="noun", text=t.text, start=t.start,
-        end=t.end, number="sing", person="3", role=role, clause=clause, key=key, marks=tuple(marks), sent=t.sent,
+        id=f"{prefix}{t.i}", side=side, seg=seg, head=t.i, tokens=(t.i,), kind=MentionKind.NOUN, text=t.text,
+        start=t.start, end=t.end, number="sing", person="3", role=role, clause=clause, key=key, marks=tuple(marks),
+        sent=t.sent,
     )
 
 
@@ -718,7 +729,7 @@ def _role_and_clause(parsed: ParsedText, i: int) -> tuple[str, int]:
         seen += 1
     if t.deprel in ("pobj", "agent") and not t.is_root:
         prep = parsed.tokens[t.head]
-        if prep.deprel in ("prep", "agent", "dative") and not prep.is_root:
+        if prep.deprel in ("prep", "agent") and not prep.is_root:
             return ("obl", prep.head)
     return t.deprel, (t.i if t.is_root else t.head)
 
@@ -760,7 +771,8 @@ def _title_noun_gender(form: str, rules: LanguageRules) -> str | None:
     if entry is None:
         return None
     gender = entry[0]
-    if gender == "fem" or (gender == "masc" and not rules.articles and form.lower() not in rules.generic_masculine):
+    if gender == Gender.FEM or (gender == Gender.MASC and not rules.articles
+                                and form.lower() not in rules.generic_masculine):
         return gender
     return None
 
@@ -772,14 +784,14 @@ def _honorifics_before(parsed, head, ids, rules, side, seg, seg_id) -> list[Evid
             continue
         g = rules.honorific(c.text)
         if g and c.deprel in ("compound", "flat", "flat:name", "appos", "nmod", "det", "amod") and c.i < head:
-            marks.append(_mark(side, seg, seg_id, c, g, "title", W_TITLE, "honorific"))
+            marks.append(_mark(side, seg, seg_id, c, g, EvidenceKind.TITLE, W_TITLE, Rule.HONORIFIC))
     # "el señor García": the honorific may be the head with the name under it.
     # Not across a coordination ("el señor Ruiz y la jefa Ana Gil": señor is not Ana Gil's title).
     h = parsed.head_of(head)
     if h is not None and h.i < head and rules.honorific(h.text) and parsed.tokens[head].deprel in (
         "flat", "flat:name", "appos", "compound", "nmod", "nmod:appos"
     ):
-        marks.append(_mark(side, seg, seg_id, h, rules.honorific(h.text), "title", W_TITLE, "honorific"))
+        marks.append(_mark(side, seg, seg_id, h, rules.honorific(h.text), EvidenceKind.TITLE, W_TITLE, Rule.HONORIFIC))
     return marks
 
 
@@ -793,8 +805,9 @@ def _np_marks(parsed, head, rules, side, seg, seg_id, noun_form: bool) -> list[E
             # A preposition fused with the article ("del propio director", "au directeur") carries its gender;
             # a bare preposition of the same form (Portuguese "a") does not (see _article_form).
             g = _article_form(c, rules)
-            if g in ("fem", "masc") and c.upos == "ADP":
-                marks.append(_mark(side, seg, seg_id, c, g, "morphology", W_DETERMINER, "determiner agreement"))
+            if g in BINARY and c.upos == "ADP":
+                marks.append(_mark(side, seg, seg_id, c, g,
+                                   EvidenceKind.MORPHOLOGY, W_DETERMINER, Rule.DETERMINER_AGREEMENT))
             continue
         if c.deprel not in rules.dependents or _is_plural(c):
             continue
@@ -804,18 +817,18 @@ def _np_marks(parsed, head, rules, side, seg, seg_id, noun_form: bool) -> list[E
             g = rules.article_gender(c.text)
             if g is None and c.upos == "DET":
                 g = c.gender  # any determiner agrees with its noun: articles, demonstratives, "propio", "otro"
-            if g in ("fem", "masc") and c.i < head:
+            if g in BINARY and c.i < head:
                 marks.append(
-                    _mark(side, seg, seg_id, c, g, "morphology", W_DETERMINER, "determiner agreement")
+                    _mark(side, seg, seg_id, c, g, EvidenceKind.MORPHOLOGY, W_DETERMINER, Rule.DETERMINER_AGREEMENT)
                 )
-        elif c.upos in ("ADJ", "VERB") and c.gender in ("fem", "masc"):
+        elif c.upos in ("ADJ", "VERB") and c.gender in BINARY:
             lo, hi = sorted((c.i, head))
             if any(parsed.tokens[j].upos in ("NOUN", "PROPN") for j in range(lo + 1, hi)):
                 continue  # a noun in between: the adjective more likely goes with that noun
-            if c.gender == "masc" and not noun_form:
+            if c.gender == Gender.MASC and not noun_form:
                 continue  # an adjective on a bare name: too often an unrelated modifier
             marks.append(
-                _mark(side, seg, seg_id, c, c.gender, "agreement", W_ADJECTIVE, "adjective agreement")
+                _mark(side, seg, seg_id, c, c.gender, EvidenceKind.AGREEMENT, W_ADJECTIVE, Rule.ADJECTIVE_AGREEMENT)
             )
     return marks
 
@@ -828,7 +841,7 @@ def _partitive_gender(parsed, pred: Token, rules) -> str | None:
         c.deprel.startswith(("nmod", "obl")) and _is_plural(c) for c in parsed.children(pred.i)
     ):
         g = pred.gender
-    return g if g in ("fem", "masc") else None
+    return g if g in BINARY else None
 
 
 def _predicate_marks(parsed, i, role, clause, rules, side, seg, seg_id, zero: bool) -> list[EvidenceItem]:
@@ -854,34 +867,35 @@ def _predicate_marks(parsed, i, role, clause, rules, side, seg, seg_id, zero: bo
             matched, by_ending = rules.ending_gender(tok.text)
             if matched:
                 g = by_ending
-        if g not in ("fem", "masc") or _is_plural(tok):
+        if g not in BINARY or _is_plural(tok):
             return
         if tok.upos in ("NOUN", "PROPN"):
             if not rules.is_person_noun(tok.text):
                 return  # "es un problema": a thing's grammatical gender
             ng = rules.noun_counterpart(tok.text)[0]
-            if ng not in ("fem", "masc"):
+            if ng not in BINARY:
                 return
             g = ng
-            if g == "masc" and tok.text.lower() in rules.generic_masculine:
+            if g == Gender.MASC and tok.text.lower() in rules.generic_masculine:
                 marks.append(
-                    _mark(side, seg, seg_id, tok, g, "lexical", W_UNMARKED_NOUN, "generic masculine noun")
+                    _mark(side, seg, seg_id, tok, g, EvidenceKind.LEXICAL, W_UNMARKED_NOUN, Rule.GENERIC_MASCULINE_NOUN)
                 )
                 return
-        weight = W_ZERO_MASC_PREDICATE if zero and g == "masc" else W_PREDICATE
-        marks.append(_mark(side, seg, seg_id, tok, g, "agreement", weight, rule))
+        weight = W_ZERO_MASC_PREDICATE if zero and g == Gender.MASC else W_PREDICATE
+        marks.append(_mark(side, seg, seg_id, tok, g, EvidenceKind.AGREEMENT, weight, rule))
 
     if has_cop and pred.upos in ("ADJ", "NOUN", "VERB"):
-        add(pred, "predicative with copula")
+        add(pred, Rule.PREDICATIVE_WITH_COPULA)
     elif has_cop and pred.upos in ("PRON", "NUM", "DET") and (g := _partitive_gender(parsed, pred, rules)):
         # Partitive predicates agree with the subject: "es una de las pocas pilotos", "l'une des rares",
         # "es uno de mis amigos".
-        marks.append(_mark(side, seg, seg_id, pred, g, "agreement", W_PREDICATE, "predicative with copula"))
+        marks.append(_mark(side, seg, seg_id, pred, g,
+                           EvidenceKind.AGREEMENT, W_PREDICATE, Rule.PREDICATIVE_WITH_COPULA))
     elif pred.upos in ("VERB", "ADJ") and pred.participle:
         # An agreeing auxiliary makes the participle agree even under a compound tense ("ha sido elegida",
         # "a été élue"); with only the compound-tense auxiliary it is invariable ("ha operado", "a opéré").
         if has_pass or aux_lemmas & rules.agreeing_aux:
-            add(pred, "participle with agreeing auxiliary")
+            add(pred, Rule.PARTICIPLE_WITH_AGREEING_AUX)
     # A copula that is itself a participle agrees where its auxiliary makes participles agree: Italian "è
     # stata gentile" (essere takes essere: the participle agrees with the subject), not Spanish "ha sido".
     if has_cop:
@@ -892,7 +906,7 @@ def _predicate_marks(parsed, i, role, clause, rules, side, seg, seg_id, zero: bo
                 and any(a.deprel in ("aux", "aux:pass") and a.lemma.lower() in rules.agreeing_aux
                         for a in kids)
             ):
-                add(k, "participle with agreeing auxiliary")
+                add(k, Rule.PARTICIPLE_WITH_AGREEING_AUX)
     # Coordinated predicates agree with the same subject ("cansada pero muy satisfecha").
     if marks and pred.upos in ("ADJ", "VERB"):
         for k in kids:
@@ -901,7 +915,7 @@ def _predicate_marks(parsed, i, role, clause, rules, side, seg, seg_id, zero: bo
                 and k.upos in ("ADJ", "VERB")
                 and (k.upos == "ADJ" or k.participle)
             ):
-                add(k, "predicative with copula")
+                add(k, Rule.PREDICATIVE_WITH_COPULA)
     # Secondary predicates ("quedó sorprendida", "se mostró convencida", "declaró emocionada"): an adjective
     # hanging on the verb itself describes the subject, unless the verb has a nominal object it could describe.
     if pred.lemma.lower() in rules.copulas:
@@ -911,7 +925,7 @@ def _predicate_marks(parsed, i, role, clause, rules, side, seg, seg_id, zero: bo
                 and k.upos in ("ADJ", "VERB")
                 and (k.upos == "ADJ" or k.participle)
             ):
-                add(k, "secondary predicate")
+                add(k, Rule.SECONDARY_PREDICATE)
     elif pred.upos == "VERB" and not any(
         k.deprel in ("obj", "iobj") and k.upos in ("NOUN", "PROPN", "PRON") for k in kids
     ):
@@ -925,7 +939,7 @@ def _predicate_marks(parsed, i, role, clause, rules, side, seg, seg_id, zero: bo
                 and not any(d.deprel == "det" or d.deprel == "cop" or d.deprel.startswith("nsubj")
                             for d in parsed.children(k.i))
             ):
-                add(k, "secondary predicate")
+                add(k, Rule.SECONDARY_PREDICATE)
     # A participle heading a non-finite adjunct or complement with no subject of its own, under an agreeing
     # auxiliary, agrees with the subject that controls it ("dopo essersi offerto", "après être arrivée", "tras
     # ser elegida").
@@ -937,7 +951,7 @@ def _predicate_marks(parsed, i, role, clause, rules, side, seg, seg_id, zero: bo
         if (auxes and not any(d.finite for d in auxes)
                 and any(d.lemma.lower() in rules.agreeing_aux for d in auxes)
                 and not any(d.deprel.startswith("nsubj") for d in own)):
-            add(k, "participle of a controlled clause")
+            add(k, Rule.CONTROLLED_CLAUSE_PARTICIPLE)
     return marks
 
 
@@ -964,7 +978,7 @@ def _zero_subjects(parsed, seg, seg_id, side, rules, prefix, quoted=frozenset())
         person = finite.feat("Person")
         if person != "3" and not (person == "1" and finite.i in quoted):
             continue
-        if any(k.deprel in SUBJECT_LIKE for k in kids):
+        if any(k.deprel in SUBJECT_LIKE_RELS for k in kids):
             continue
         lemma = (finite.lemma if finite is t else t.lemma).lower()
         if lemma in ("haber", "hacer") and finite is t:
@@ -979,7 +993,7 @@ def _zero_subjects(parsed, seg, seg_id, side, rules, prefix, quoted=frozenset())
                 seg=seg,
                 head=t.i,
                 tokens=(finite.i,),
-                kind="zero",
+                kind=MentionKind.ZERO,
                 text=finite.text,
                 start=finite.start,
                 end=finite.end,
