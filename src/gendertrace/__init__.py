@@ -6,10 +6,22 @@ Python API (the command line is built on it)::
     scorer = Scorer("es", "en")
     for result in scorer.score(read_corpus("batch.tsv")):
         print(result.doc_id, result.stats.consistent, "/", result.stats.checked)
+
+`score_file` (what `gendertrace score` does) and `explain_document` are importable from here too; they load
+the file-level machinery (streaming, worker processes) only when first used.
 """
 
-__version__ = "0.1.0"
+from gendertrace._version import __version__
+from gendertrace.io.readers import read_corpus
+from gendertrace.pipeline import Scorer, ScoreSettings
 
-from gendertrace.pipeline import Scorer, ScoreSettings  # noqa: E402
+__all__ = ["Scorer", "ScoreSettings", "__version__", "explain_document", "read_corpus", "score_file"]
 
-__all__ = ["Scorer", "ScoreSettings", "__version__"]
+
+def __getattr__(name: str):
+    # The file-level API imports the streaming runner, which imports the scorer: loaded on first use.
+    if name in ("score_file", "explain_document"):
+        from gendertrace import api
+
+        return getattr(api, name)
+    raise AttributeError(f"module 'gendertrace' has no attribute {name!r}")

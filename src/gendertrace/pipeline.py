@@ -6,7 +6,7 @@ from collections.abc import Callable, Iterable, Iterator, Sequence
 from dataclasses import dataclass, field, replace
 from functools import cached_property
 
-from gendertrace import __version__
+from gendertrace._version import __version__
 from gendertrace.coref.sieves import resolve_chains
 from gendertrace.declared.apply import apply_declarations
 from gendertrace.declared.policy import Policy
@@ -20,14 +20,15 @@ from gendertrace.model import Document, DocumentResult, ParsedDocument, ParsedTe
 from gendertrace.parse.base import Parser, get_parser
 from gendertrace.parse.spacy_backend import expect_languages
 from gendertrace.rules import LanguageRules, load_lexicon, load_rules, rules_digest
+from gendertrace.settings import DEFAULT_BATCH_DOCS, DEFAULT_MIN_CONFIDENCE, WEIGHTS, weights_digest
 
 
 @dataclass
 class ScoreSettings:
     """Everything that changes a score; recorded in the run signature."""
 
-    min_confidence: float = 0.5
-    batch_size: int = 2000  # documents whose segments are parsed and aligned together
+    min_confidence: float = DEFAULT_MIN_CONFIDENCE
+    batch_size: int = DEFAULT_BATCH_DOCS  # documents whose segments are parsed and aligned together
     parser: str = "spacy"
     src_model: str | None = None
     tgt_model: str | None = None
@@ -39,6 +40,7 @@ def pronoun_pairs(src: LanguageRules, tgt: LanguageRules) -> dict[tuple[str, str
     """Pronoun correspondences for the aligner, scored: same type is required and number must be compatible;
     equal case and equal gender score higher. Gender only ranks: a wrongly gendered pronoun still pairs."""
     pairs: dict[tuple[str, str], float] = {}
+    w = WEIGHTS.pronoun_pairs
     for a, fa in src.pronouns.items():
         for b, fb in tgt.pronouns.items():
             best = None
@@ -51,11 +53,11 @@ def pronoun_pairs(src: LanguageRules, tgt: LanguageRules) -> dict[tuple[str, str
                     # dative clitic often translates as a direct object ("le permite" / "allowed him").
                     if x.case and y.case and x.case != y.case and {x.case, y.case} != {"acc", "dat"}:
                         continue
-                    score = 1.0 + (0.5 if x.case and x.case == y.case else 0.0)
-                    score += 1.0 if x.gender and x.gender == y.gender else 0.0
+                    score = w.base + (w.same_case if x.case and x.case == y.case else 0.0)
+                    score += w.same_gender if x.gender and x.gender == y.gender else 0.0
                     # A pronoun that stands only for persons pairs before a clitic that may stand for a thing
                     # ("la elegí a ella" / "I chose her": her is ella, the doubled clitic la is the same).
-                    score -= 0.75 if x.animate is False or y.animate is False else 0.0
+                    score -= w.thing_penalty if x.animate is False or y.animate is False else 0.0
                     best = score if best is None else max(best, score)
             if best is not None:
                 pairs[(a, b)] = best
@@ -98,6 +100,7 @@ class Scorer:
         return {
             "tool": f"gendertrace {__version__}",
             "rules": rules_digest(),
+            "weights": weights_digest(),
             "src": f"{self.src_lang}:{self.src_parser.signature()}",
             "tgt": f"{self.tgt_lang}:{self.tgt_parser.signature()}",
             "min_confidence": self.settings.min_confidence,

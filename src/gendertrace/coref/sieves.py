@@ -13,6 +13,7 @@ from collections.abc import Sequence
 from dataclasses import dataclass, field
 
 from gendertrace.model import Chain, Mention, ParsedText, Side
+from gendertrace.settings import WEIGHTS
 from gendertrace.vocab import (
     BINARY,
     NOMINAL_KINDS,
@@ -23,17 +24,13 @@ from gendertrace.vocab import (
     MentionKind,
 )
 
-# How far back (in segments) a pronoun or zero subject looks for its antecedent.
-PRONOUN_WINDOW = 3
-# Certainty of a pronoun's attachment by distance in segments (same, previous, two back, three back).
-DISTANCE_CERTAINTY = (1.0, 0.9, 0.8, 0.7)
-# Certainty when another compatible antecedent was nearly as salient.
-ALTERNATIVE_CERTAINTY = 0.7
-# Certainty of a pronoun that also stands for things where a thing of its gender was a subject just before:
-# as likely the thing as the person.
-THING_CERTAINTY = 0.5
-# A competitor within this much salience counts as an alternative (less than the bonus for being a subject).
-ALTERNATIVE_MARGIN = 0.5
+# Window, certainties and margin: rules/scoring/weights.yaml, section "coreference" (salience: "salience").
+PRONOUN_WINDOW = WEIGHTS.coreference.pronoun_window
+DISTANCE_CERTAINTY = WEIGHTS.coreference.distance_certainty
+ALTERNATIVE_CERTAINTY = WEIGHTS.coreference.alternative_certainty
+THING_CERTAINTY = WEIGHTS.coreference.thing_certainty
+ALTERNATIVE_MARGIN = WEIGHTS.coreference.alternative_margin
+SALIENCE = WEIGHTS.salience
 
 
 @dataclass
@@ -542,15 +539,15 @@ def _subtree(parsed: ParsedText, i: int) -> set[int]:
 
 def _salience(cand: Mention, m: Mention) -> float:
     distance = m.seg - cand.seg
-    score = -0.8 * distance
+    score = -SALIENCE.per_segment * distance
     if distance == 0:
-        score -= min(0.02 * max(m.head - cand.head, 0), 0.4)  # nearer words first within a segment
+        score -= min(SALIENCE.per_word * max(m.head - cand.head, 0), SALIENCE.per_word_cap)  # nearer words first
     if cand.role in SUBJECT_RELS:
-        score += 0.6
+        score += SALIENCE.subject
     if cand.kind in NOMINAL_KINDS:
-        score += 0.2
+        score += SALIENCE.nominal
     if cand.seg == m.seg and cand.sent == m.sent:
-        score += 0.3
+        score += SALIENCE.same_sentence
     return score
 
 
@@ -643,25 +640,26 @@ def _pick_antecedent(m, ms, cl, parses, use_gender):
             continue
         s = _salience(c, m)
         if c.seg == m.seg and c.head in relative_heads:
-            s += 1.0
+            s += SALIENCE.relative_head
         if (
             m.pron_type == "possessive"
             and c.seg == m.seg
             and c.clause == m.clause
             and c.role in SUBJECT_RELS
         ):
-            s += 0.4  # possessives lean to the subject of their own clause
+            s += SALIENCE.possessive_own_subject  # possessives lean to the subject of their own clause
         if (
             m.pron_type == "possessive"
             and c.seg == m.seg
             and c.head == _relative_antecedent(parses[m.seg], m.clause)
         ):
-            s += 0.6  # in a relative clause, the noun it describes is that clause's subject or object
+            # In a relative clause, the noun it describes is that clause's subject or object.
+            s += SALIENCE.possessive_relative_antecedent
         members = cl.members(c.id)
         # Entities mentioned often stay salient; on the source side a matching known gender is preferred.
-        s += min(0.1 * (len(members) - 1), 0.4)
+        s += min(SALIENCE.per_mention * (len(members) - 1), SALIENCE.per_mention_cap)
         if use_gender and m.gender and m.gender in _genders(members):
-            s += 0.5
+            s += SALIENCE.known_gender
         root = cl.find(c.id)
         if root not in scored or s > scored[root][0]:
             scored[root] = (s, c)

@@ -12,12 +12,12 @@ from gendertrace.evidence.resolve import dedupe, resolve_gender
 from gendertrace.mentions.extract import name_key
 from gendertrace.model import Entity, EvidenceItem, Mention
 from gendertrace.rules import load_rules
+from gendertrace.settings import WEIGHTS
 from gendertrace.vocab import EvidenceKind, MentionKind, Rule
 
-# A declaration decides: it outweighs the textual evidence a document plausibly holds about one person.
-W_DECLARED = 3.0
-# A first name is weak evidence: below one agreeing adjective, so any gendered word of the text outranks it.
-W_FIRST_NAME = 0.2
+# A declaration decides; a first name is weak evidence: rules/scoring/weights.yaml, section "evidence".
+W_DECLARED = WEIGHTS.evidence.declared
+W_FIRST_NAME = WEIGHTS.evidence.first_name
 
 
 def _form_gender(form: str, lang: str) -> str | None:

@@ -12,9 +12,10 @@ from dataclasses import dataclass, replace
 
 from gendertrace.coref.sieves import Resolution
 from gendertrace.model import Entity, EvidenceItem, Link, Mention
+from gendertrace.settings import WEIGHTS
 
-# Evidence weight at which a single kind of evidence is considered fairly strong (confidence about 0.63).
-STRENGTH_SCALE = 0.7
+# Evidence weight at which a single kind of evidence is fairly strong: rules/scoring/weights.yaml, "resolution".
+STRENGTH_SCALE = WEIGHTS.resolution.strength_scale
 
 
 def dedupe(items: Iterable[EvidenceItem]) -> tuple[EvidenceItem, ...]:

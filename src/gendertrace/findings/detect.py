@@ -16,6 +16,7 @@ from gendertrace.declared.policy import Policy
 from gendertrace.evidence.resolve import STRENGTH_SCALE, dedupe, resolve_gender
 from gendertrace.mentions.extract import W_PRONOUN
 from gendertrace.model import DocumentStats, Entity, EvidenceItem, Finding, Link, Mention
+from gendertrace.settings import DEFAULT_MIN_CONFIDENCE, WEIGHTS
 from gendertrace.vocab import (
     BINARY,
     FINDING_KINDS,
@@ -74,12 +75,12 @@ def target_references(m: Mention, target_text: str) -> list[Reference]:
     return refs
 
 
-# The target's own words count for less than the source's when they are evidence about another target word.
-TARGET_FACTOR = 0.8
-# Source evidence this confident settles a gender alone; weaker source evidence is pooled with the target's.
-SOURCE_DECISIVE = 0.6
-# A segment-level verdict, used only when the entity's own evidence is silent, counts for this much.
-SEGMENT_FACTOR = 0.75
+# Factors and thresholds of the judgement: rules/scoring/weights.yaml, section "findings".
+TARGET_FACTOR = WEIGHTS.findings.target_factor
+SOURCE_DECISIVE = WEIGHTS.findings.source_decisive
+SEGMENT_FACTOR = WEIGHTS.findings.segment_factor
+SEGMENT_UNANIMITY = WEIGHTS.findings.segment_unanimity
+ASSUMPTION_FACTOR = WEIGHTS.findings.assumption_factor
 
 
 def _pooled_verdict(source: Sequence[EvidenceItem], others: Sequence[EvidenceItem]):
@@ -94,7 +95,7 @@ def detect_findings(
     target_texts: Sequence[str],
     seg_ids: Sequence[str],
     certainty: dict[str, float],
-    min_confidence: float = 0.5,
+    min_confidence: float = DEFAULT_MIN_CONFIDENCE,
     target_chain_of: dict[str, str] | None = None,
     segment_evidence: Sequence[Sequence[EvidenceItem]] | None = None,
     policy: Policy | None = None,
@@ -240,7 +241,7 @@ def detect_findings(
         binary_source = any(x.gender in BINARY for x in source_ev)
         if not binary_source and judged == 0 and _entity_kind(e) in policy.assumptions:
             r = ordered[0]
-            findings.append(_finding(FindingKind.ASSUMPTION, r, None, e, 0.5 * reach(r), (), seg_ids))
+            findings.append(_finding(FindingKind.ASSUMPTION, r, None, e, ASSUMPTION_FACTOR * reach(r), (), seg_ids))
     findings.sort(key=lambda f: (f.seg, f.start))
     counts = {
         k: sum(1 for f in findings if f.kind == k) for k in FINDING_KINDS
@@ -310,7 +311,7 @@ def _entity_verdict(r: Reference, e: Entity, ordered, source_ev, source_verdict,
             seg_verdict
             and seg_verdict.gender in BINARY
             and seg_verdict.confidence
-            >= 0.99 * (1.0 - math.exp(-sum(e.weight for e in seg_ev) / STRENGTH_SCALE))
+            >= SEGMENT_UNANIMITY * (1.0 - math.exp(-sum(e.weight for e in seg_ev) / STRENGTH_SCALE))
         ):
             verdict, kind, support = seg_verdict, FindingKind.CONTRADICTION, list(seg_ev)
             conf = seg_verdict.confidence * SEGMENT_FACTOR
@@ -319,8 +320,8 @@ def _entity_verdict(r: Reference, e: Entity, ordered, source_ev, source_verdict,
     return verdict, kind, support, conf
 
 
-# How surely a target word is about what the source word aligned to it (or the subject projected to it) is about.
-DIRECT_REACH = 0.85
+# How surely a target word is about what the source word aligned to it is about ("findings.direct_reach").
+DIRECT_REACH = WEIGHTS.findings.direct_reach
 
 
 def _direct_verdict(r: Reference, links: dict[str, Link], e: Entity):

@@ -14,13 +14,16 @@ from dataclasses import replace
 from gendertrace.coref.sieves import Resolution
 from gendertrace.link.align import Alignment
 from gendertrace.model import Link, Mention, ParsedText
+from gendertrace.settings import WEIGHTS
 from gendertrace.vocab import CLAUSE_FUNCTION_RELS, SUBJECT_RELS, MentionKind
 
-CONF_NAME = 1.0
-CONF_LEXICON = 0.95
-CONF_ALIGNED = 0.85
-CONF_PROJECTED = 0.85
-CONF_CHAIN = 0.8
+# Confidence by link method: rules/scoring/weights.yaml, section "links".
+CONF_NAME = WEIGHTS.links.name
+CONF_PARTIAL_NAME = WEIGHTS.links.partial_name
+CONF_LEXICON = WEIGHTS.links.lexicon
+CONF_ALIGNED = WEIGHTS.links.alignment
+CONF_PROJECTED = WEIGHTS.links.projection
+CONF_CHAIN = WEIGHTS.links.chain
 
 
 def _clause_of(parsed: ParsedText, i: int) -> int:
@@ -150,7 +153,7 @@ def _name_link(m: Mention, src_names: Sequence[Mention], chain: dict[str, str]) 
         return Link(m.id, chain[exact[0].id], "name", CONF_NAME, exact[0].id)
     partial = [s for s in src_names if words and (words <= set(s.key.split()) or set(s.key.split()) <= words)]
     if len({chain[s.id] for s in partial}) == 1:
-        return Link(m.id, chain[partial[0].id], "name", CONF_NAME * 0.95, partial[0].id)
+        return Link(m.id, chain[partial[0].id], "name", CONF_NAME * CONF_PARTIAL_NAME, partial[0].id)
     return None
 
 

@@ -14,6 +14,7 @@ from dataclasses import replace
 from gendertrace.model import EvidenceItem, Mention, ParsedText, Side, Token
 from gendertrace.rules import LanguageRules
 from gendertrace.rules.loader import pronoun_key
+from gendertrace.settings import WEIGHTS
 from gendertrace.vocab import (
     BINARY,
     NAME_LINK_RELS,
@@ -28,19 +29,16 @@ from gendertrace.vocab import (
     Rule,
 )
 
-# Weights of the kinds of marks (common practice, no source; tuned on the benchmark, see docs/benchmarks.md).
-W_PRONOUN = 1.0
-# Clitics that also stand for things ("lo", "la"): their gender may be a noun's, so alone they settle nothing.
-W_CLITIC = 0.3
-W_TITLE = 1.0
-W_LEXICAL = 0.9  # an inherently gendered noun form (madre, actress) or a marked feminine role noun
-W_UNMARKED_NOUN = 0.5  # a masculine role-noun form, which is also the generic form
-W_DETERMINER = 0.8
-W_ADJECTIVE = 0.6
-W_PREDICATE = 0.7
-# Masculine agreement is also the default with no person in view ("es necesario"), so it counts for less on
-# a zero subject, whose referent is itself inferred.
-W_ZERO_MASC_PREDICATE = 0.35
+# Weights of the kinds of marks: rules/scoring/weights.yaml, section "evidence".
+W_PRONOUN = WEIGHTS.evidence.pronoun
+W_CLITIC = WEIGHTS.evidence.clitic
+W_TITLE = WEIGHTS.evidence.title
+W_LEXICAL = WEIGHTS.evidence.lexical
+W_UNMARKED_NOUN = WEIGHTS.evidence.unmarked_noun
+W_DETERMINER = WEIGHTS.evidence.determiner
+W_ADJECTIVE = WEIGHTS.evidence.adjective
+W_PREDICATE = WEIGHTS.evidence.predicate
+W_ZERO_MASC_PREDICATE = WEIGHTS.evidence.zero_masc_predicate
 
 
 def _mark(
@@ -981,7 +979,7 @@ def _zero_subjects(parsed, seg, seg_id, side, rules, prefix, quoted=frozenset())
         if any(k.deprel in SUBJECT_LIKE_RELS for k in kids):
             continue
         lemma = (finite.lemma if finite is t else t.lemma).lower()
-        if lemma in ("haber", "hacer") and finite is t:
+        if lemma in rules.subjectless_verbs and finite is t:
             continue  # existential "hay", weather "hace frío": no subject at all
         if any(k.text.lower() == "se" and k.deprel != "obj" for k in kids):
             continue  # impersonal or passive "se": the clause has no person subject

@@ -80,6 +80,9 @@ class LanguageRules:
     speech_verbs: frozenset[str] = frozenset()
     # Adjectives that, nominalised after a demonstrative, take up an earlier referent ("cette dernière").
     latter_words: frozenset[str] = frozenset()
+    # Verbs (lemmas) whose finite forms have no subject at all where none is written (existential "hay",
+    # weather "hace frío"): they make no zero-subject mention.
+    subjectless_verbs: frozenset[str] = frozenset()
     expletive_pronouns: frozenset[str] = frozenset()
     expletive_verbs: frozenset[str] = frozenset()
     expletive_clausal_verbs: frozenset[str] = frozenset()
@@ -171,6 +174,7 @@ TOP_KEYS = {
     "thing_pronouns",
     "speech_verbs",
     "latter_words",
+    "subjectless_verbs",
     "neutral_language",
 }
 
@@ -348,6 +352,7 @@ def parse_rules(data: Any, path: Path) -> LanguageRules:
         thing_pronouns=_optional_words(data, "thing_pronouns", path),
         speech_verbs=_optional_words(data, "speech_verbs", path),
         latter_words=_optional_words(data, "latter_words", path),
+        subjectless_verbs=_optional_words(data, "subjectless_verbs", path),
         expletive_pronouns=expl_lists["pronouns"],
         expletive_verbs=expl_lists["verbs"],
         expletive_clausal_verbs=expl_lists["clausal_verbs"],
