@@ -143,6 +143,19 @@ class ParsedDocument:
 # Mentions, evidence, chains
 
 
+@dataclass(frozen=True, order=True)
+class Span:
+    """Characters [start, end) of one segment side: where a mention, an evidence item or a finding stands."""
+
+    side: Side
+    seg: int  # segment index in the document
+    start: int
+    end: int
+
+    def overlaps(self, other: Span) -> bool:
+        return (self.side, self.seg) == (other.side, other.seg) and self.start < other.end and other.start < self.end
+
+
 @dataclass(frozen=True)
 class EvidenceItem:
     """A located word (or words) that marks a gender on a mention, and how much it counts.
@@ -163,6 +176,10 @@ class EvidenceItem:
     weight: float
     rule: str  # which rule produced it, for explanations
     tokens: tuple[int, ...] = ()
+
+    @property
+    def span(self) -> Span:
+        return Span(self.side, self.seg, self.start, self.end)
 
     def to_json(self) -> dict:
         return {
@@ -206,6 +223,16 @@ class Mention:
     animate: bool = True  # False for pronouns that can also stand for things (it, lo, la)
     case: str | None = None  # pronouns: nom, acc, dat (from the rules), else None
     quoted: bool = False  # inside quotation marks
+    # Set by coreference (coref.sieves): the chain, the mention a pronoun or zero subject was resolved to, and
+    # how certain that attachment is (1.0 unless a choice was made); possessives read by their own form.
+    chain: str = ""
+    antecedent: str = ""
+    certainty: float = 1.0
+    read_by_form: bool = False
+
+    @property
+    def span(self) -> Span:
+        return Span(self.side, self.seg, self.start, self.end)
 
     @property
     def gender(self) -> str | None:
@@ -290,6 +317,11 @@ class Finding:
     evidence: tuple[EvidenceItem, ...]
     message: str = ""
     seg: int = 0
+
+    @property
+    def span(self) -> Span:
+        """Findings are about target words."""
+        return Span("target", self.seg, self.start, self.end)
 
     def to_json(self) -> dict:
         return {

@@ -22,7 +22,7 @@ def dedupe(items: Iterable[EvidenceItem]) -> tuple[EvidenceItem, ...]:
     """One item per located word: two mentions of one chain may share an agreeing word."""
     seen: dict[tuple, EvidenceItem] = {}
     for it in items:
-        key = (it.side, it.seg, it.start, it.end)
+        key = it.span
         if key not in seen or it.weight > seen[key].weight:
             seen[key] = it
     return tuple(sorted(seen.values(), key=lambda e: (e.side != "source", e.seg, e.start)))

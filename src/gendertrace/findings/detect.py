@@ -15,7 +15,7 @@ from dataclasses import dataclass, replace
 from gendertrace.declared.policy import Policy
 from gendertrace.evidence.resolve import STRENGTH_SCALE, dedupe, resolve_gender
 from gendertrace.mentions.extract import W_PRONOUN
-from gendertrace.model import DocumentStats, Entity, EvidenceItem, Finding, Link, Mention
+from gendertrace.model import DocumentStats, Entity, EvidenceItem, Finding, Link, Mention, Span
 from gendertrace.settings import DEFAULT_MIN_CONFIDENCE, WEIGHTS
 from gendertrace.vocab import (
     BINARY,
@@ -42,6 +42,10 @@ class Reference:
     text: str
     gender: str
     marks: tuple[EvidenceItem, ...]
+
+    @property
+    def span(self) -> Span:
+        return Span("target", self.seg, self.start, self.end)
 
 
 def target_references(m: Mention, target_text: str) -> list[Reference]:
@@ -127,10 +131,10 @@ def detect_findings(
                         r for r in target_references(m, target_texts[m.seg]) if r.gender in BINARY
                     )
     for e in entities:
-        refs: dict[tuple[int, int, int], Reference] = {}
+        refs: dict[Span, Reference] = {}
         for m in e.target_mentions:
             for r in target_references(m, target_texts[m.seg]):
-                refs.setdefault((r.seg, r.start, r.end), r)
+                refs.setdefault(r.span, r)
         every = sorted(refs.values(), key=lambda r: (r.seg, r.start))
         every = [r for r in every if _checkable(r.mention, links, e) and not _unmarked_only(r)]
         ordered = [r for r in every if r.gender in BINARY]
@@ -180,7 +184,7 @@ def detect_findings(
         judged = 0
         consistent_before = consistent
         raised: list[Finding] = []  # the entity's findings
-        agreed: set[tuple[int, int, int]] = set()  # words judged consistent
+        agreed: set[Span] = set()  # words judged consistent
         nominal = _nominal_view(e, ordered, source_ev) if any(_title_only(r) for r in ordered) else None
         anchors: list[tuple[Reference, float]] = []  # titles that pronouns alone would have flagged
         for r in ordered:
@@ -215,16 +219,16 @@ def detect_findings(
             judged += 1
             if r.gender == verdict.gender:
                 consistent += 1
-                agreed.add((r.seg, r.start, r.end))
+                agreed.add(r.span)
                 continue
             expected = verdict.gender if kind == FindingKind.CONTRADICTION else None
             findings.append(_finding(kind, r, expected, e, conf, support, seg_ids))
             raised.append(findings[-1])
         for r, conf in anchors:
             # Where only the target disagrees with a title, the words attached by coreference are the odd ones.
-            flagged = {(f.seg, f.start, f.end) for f in raised} | agreed
+            flagged = {f.span for f in raised} | agreed
             for o in ordered:
-                if o.gender != r.gender and not _title_only(o) and (o.seg, o.start, o.end) not in flagged:
+                if o.gender != r.gender and not _title_only(o) and o.span not in flagged:
                     checked += 1
                     judged += 1
                     findings.append(_finding(FindingKind.INCONSISTENCY, o, None, e, conf, r.marks, seg_ids))
@@ -258,7 +262,7 @@ def detect_findings(
 
 
 def _tie_partners(ordered: Sequence[Reference], raised: Sequence[Finding],
-                  agreed: set[tuple[int, int, int]]) -> list[tuple[Reference, Finding]]:
+                  agreed: set[Span]) -> list[tuple[Reference, Finding]]:
     """Where an entity's gendered target words split evenly between feminine and masculine and only some of
     them were flagged as inconsistent (the others' attachment to the person was less sure), the unflagged
     words of the split, each with the most confident finding raised against the other side. Not where any
@@ -268,10 +272,10 @@ def _tie_partners(ordered: Sequence[Reference], raised: Sequence[Finding],
     fem = sum(1 for r in ordered if r.gender == Gender.FEM)
     if fem * 2 != len(ordered):
         return []
-    flagged = {(f.seg, f.start, f.end) for f in raised} | agreed
+    flagged = {f.span for f in raised} | agreed
     out = []
     for r in ordered:
-        if (r.seg, r.start, r.end) in flagged or _title_only(r):  # a title is judged by names and nouns only
+        if r.span in flagged or _title_only(r):  # a title is judged by names and nouns only
             continue
         against = [f for f in raised if f.found != r.gender]
         if against:
@@ -285,11 +289,11 @@ def _entity_verdict(r: Reference, e: Entity, ordered, source_ev, source_verdict,
     if source_verdict and source_verdict.confidence >= max(min_confidence, SOURCE_DECISIVE):
         verdict, kind, support = source_verdict, FindingKind.CONTRADICTION, source_ev
     else:
-        pool = {(o.seg, o.start, o.end): o for o in ordered}
+        pool = {o.span: o for o in ordered}
         if target_chain_of and certainty.get(r.mention.id, 1.0) >= 1.0:
             for o in chain_refs.get(target_chain_of[r.mention.id], []):
-                pool.setdefault((o.seg, o.start, o.end), o)
-        others = [mk for key, o in pool.items() if key != (r.seg, r.start, r.end) for mk in o.marks]
+                pool.setdefault(o.span, o)
+        others = [mk for key, o in pool.items() if key != r.span for mk in o.marks]
         if not others and not source_ev:
             return None
         verdict = _pooled_verdict(source_ev, others)
@@ -361,7 +365,7 @@ def _judge_declared(
     n_checked = n_consistent = 0
     flagged: list[Reference] = []
     for r in refs:
-        if any(f.seg == r.seg and f.start < r.end and r.start < f.end for f in flagged):
+        if any(f.span.overlaps(r.span) for f in flagged):
             continue  # "el diseñador" and its noun as a predicate: one word group, one finding
         if r.gender in e.declared:
             n_checked += 1
@@ -397,9 +401,9 @@ def _title_only(r: Reference) -> bool:
 def _nominal_view(e: Entity, ordered: Sequence[Reference], source_ev: Sequence[EvidenceItem]):
     """The entity's evidence from its nominal mentions only (names, titles, role and kinship nouns): the target
     references of such mentions, the source evidence items such mentions carry, and the verdict on those."""
-    nominal_marks = {(mk.side, mk.seg, mk.start, mk.end) for m in e.source_mentions if m.kind in NOMINAL_KINDS
+    nominal_marks = {mk.span for m in e.source_mentions if m.kind in NOMINAL_KINDS
                      for mk in m.marks}
-    source = [x for x in source_ev if (x.side, x.seg, x.start, x.end) in nominal_marks]
+    source = [x for x in source_ev if x.span in nominal_marks]
     return ([r for r in ordered if r.mention.kind in NOMINAL_KINDS], source,
             resolve_gender(source) if source else None)
 
