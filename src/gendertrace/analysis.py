@@ -61,8 +61,12 @@ class SideAnalysis:
         return self.resolution.chains if self.resolution else []
 
     def resolved(self) -> list[Mention]:
-        """The mentions with their chain, antecedent and certainty set (after coreference), in text order."""
-        return self.resolution.mentions if self.resolution else list(self.mentions)
+        """The mentions with their chain, antecedent and certainty set (after coreference), in extraction
+        order."""
+        if self.resolution is None:
+            return list(self.mentions)
+        by_id = {m.id: m for c in self.resolution.chains for m in c.mentions}
+        return [by_id[m.id] for m in self.mentions]
 
 
 @dataclass

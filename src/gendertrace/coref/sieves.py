@@ -49,11 +49,6 @@ class Resolution:
     # _local_possessor), whom an alignment through an ungendered source possessive does not overrule.
     read_by_form: set[str] = field(default_factory=set)
 
-    @property
-    def mentions(self) -> list[Mention]:
-        """Every resolved mention of the side, in text order."""
-        return sorted((m for c in self.chains for m in c.mentions), key=_order)
-
 
 class _Clusters:
     """Union-find over mention ids that keeps each cluster's members and their numbers and genders, so that

@@ -3,10 +3,10 @@
 from __future__ import annotations
 
 from gendertrace.analysis import Analysis
-from gendertrace.link.linker import link_mentions
+from gendertrace.link.linker import LinkContext, link_all
 
 
 def link_sides(a: Analysis) -> None:
-    """Reads both sides' mentions, chains and parses, the alignments and the lexicon; writes `links`."""
-    a.links = link_mentions(a.source.mentions, a.target.mentions, a.source.resolution, a.target.resolution,
-                            a.source.parses, a.target.parses, a.alignments, a.context.lexicon)
+    """Reads both sides' resolved mentions and parses, the alignments and the lexicon; writes `links`."""
+    a.links = link_all(LinkContext(a.source.resolved(), a.target.resolved(), a.source.parses, a.target.parses,
+                                   a.alignments, a.context.lexicon))
