@@ -11,7 +11,7 @@ from gendertrace.evidence.resolve import build_entities, dedupe
 def gather_evidence(a: Analysis) -> None:
     """Reads both sides' chains, the target mentions and the links; writes `entities` and `segment_evidence`."""
     c = a.context
-    entities, _ = build_entities(a.source.resolution, a.target.resolution, a.target.mentions, a.links)
+    entities, _ = build_entities(a.source.resolution, a.target.resolution, a.target.resolved(), a.links)
     if c.entity_sheet is not None or c.policy.first_names:
         entities = apply_declarations(entities, c.entity_sheet, c.src_lang, c.tgt_lang, a.seg_ids,
                                       c.policy.first_names)
