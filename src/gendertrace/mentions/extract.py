@@ -8,8 +8,9 @@ adjective or participle agreeing with the subject, an honorific.
 
 from __future__ import annotations
 
-from collections.abc import Iterable
-from dataclasses import replace
+from collections.abc import Callable, Iterable
+from dataclasses import dataclass, field, replace
+from functools import cached_property
 
 from gendertrace.model import EvidenceItem, Mention, ParsedText, Side, Token
 from gendertrace.rules import LanguageRules
@@ -17,6 +18,7 @@ from gendertrace.rules.loader import pronoun_key
 from gendertrace.settings import WEIGHTS
 from gendertrace.vocab import (
     BINARY,
+    CLAUSE_FUNCTION_RELS,
     NAME_LINK_RELS,
     NOMINAL_KINDS,
     RELATIVE_CLAUSE_RELS,
@@ -150,6 +152,39 @@ def name_key(text: str) -> str:
     return " ".join(text.lower().replace("\u2019", "'").split())
 
 
+@dataclass
+class SegmentSide:
+    """One segment side being read for mentions: its parse, where it stands, its language's rules, the person
+    names known from the other side, the quoted words, and the words a mention has already taken."""
+
+    parsed: ParsedText
+    seg: int
+    seg_id: str
+    side: Side
+    rules: LanguageRules
+    known: set[str] = field(default_factory=set)
+    quoted: set[int] = field(default_factory=set)
+    claimed: set[int] = field(default_factory=set)
+
+    @property
+    def toks(self) -> tuple[Token, ...]:
+        return self.parsed.tokens
+
+    @property
+    def prefix(self) -> str:
+        """Mention ids are the side's initial, the segment index and the head token: "s0.4", "t2.z7"."""
+        return f"{self.side[0]}{self.seg}."
+
+    @cached_property
+    def noun_like(self) -> set[int]:
+        """Person nouns, also where the tagger took them for something else ("la ingeniera" as a verb) but an
+        article stands before them."""
+        return _noun_like(self)
+
+    def mark(self, tok: Token | list[Token], gender: str, kind: str, weight: float, rule: str) -> EvidenceItem:
+        return _mark(self.side, self.seg, self.seg_id, tok, gender, kind, weight, rule)
+
+
 def extract_mentions(
     parsed: ParsedText,
     seg: int,
@@ -159,51 +194,54 @@ def extract_mentions(
     known_names: Iterable[str] = (),
 ) -> list[Mention]:
     """All person mentions of one segment side, in text order, with their gender marks."""
-    known = {name_key(n) for n in known_names}
-    toks = parsed.tokens
-    quoted = _quoted_tokens(parsed)
-    prefix = f"{side[0]}{seg}."
+    sc = SegmentSide(parsed, seg, seg_id, side, rules, {name_key(n) for n in known_names}, _quoted_tokens(parsed))
     out: list[Mention] = []
-    used: set[int] = set()
+    for extractor in EXTRACTORS:
+        out += extractor(sc)
+    out = [replace(m, quoted=True) if m.tokens and m.tokens[0] in sc.quoted else m for m in out]
+    # Text order; at one position a name before a one-word mention, and a zero subject last.
+    out.sort(key=lambda m: (m.start, m.kind == MentionKind.ZERO, m.kind != MentionKind.NAME,
+                            m.head if m.kind in (MentionKind.NOUN, MentionKind.PRONOUN) else 0))
+    return out
 
-    # Names (not neopronouns the recogniser took for names: "Xe", "Ze").
+
+def name_mentions(sc: SegmentSide) -> list[Mention]:
+    """Person names (not neopronouns the recogniser took for names: "Xe", "Ze"), each with the titles before
+    it and its agreeing words."""
+    rules, toks, parsed = sc.rules, sc.toks, sc.parsed
     spans = [
         sp
-        for sp in _name_spans(parsed, known, rules.speech_verbs)
+        for sp in _name_spans(parsed, sc.known, rules.speech_verbs)
         if not any(f.gender == Gender.NEUTRAL for i in sp for f in rules.pronoun(toks[i].text))
         and not any(toks[i].upos == "PRON" and rules.pronoun(toks[i].text) for i in sp)
     ]
+    out = []
     for span in spans:
         words = [toks[i] for i in span]
         # An honorific at the start of a name span is a title, not part of the name.
         title_marks = []
         while words and rules.honorific(words[0].text):
-            title_marks.append(
-                _mark(
-                    side, seg, seg_id, words[0], rules.honorific(words[0].text), EvidenceKind.TITLE, W_TITLE,
-                    Rule.HONORIFIC
-                )
-            )
+            title_marks.append(sc.mark(words[0], rules.honorific(words[0].text), EvidenceKind.TITLE, W_TITLE,
+                                       Rule.HONORIFIC))
             words = words[1:]
         # So is a gendered person noun there ("King Aldric", "Sister Maren"): the recogniser often takes the
         # title into the name. Only nouns whose form alone shows the gender count (not a generic masculine).
         while len(words) > 1 and words[0].text[:1].isupper() and (title := _title_noun_gender(words[0].text, rules)):
-            title_marks.append(_mark(side, seg, seg_id, words[0], title,
-                                     EvidenceKind.LEXICAL, W_LEXICAL, Rule.GENDERED_NOUN))
+            title_marks.append(sc.mark(words[0], title, EvidenceKind.LEXICAL, W_LEXICAL, Rule.GENDERED_NOUN))
             words = words[1:]
         if not words:
             continue
         ids = [w.i for w in words]
         head = _span_head(parsed, ids)
-        marks = title_marks + _honorifics_before(parsed, head, ids, rules, side, seg, seg_id)
-        marks += _np_marks(parsed, head, rules, side, seg, seg_id, noun_form=False)
+        marks = title_marks + _honorifics_before(sc, head, ids)
+        marks += _np_marks(sc, head, noun_form=False)
         role, clause = _role_and_clause(parsed, head)
-        marks += _predicate_marks(parsed, head, role, clause, rules, side, seg, seg_id, zero=False)
+        marks += _predicate_marks(sc, head, role, clause, zero=False)
         out.append(
             Mention(
-                id=f"{prefix}{head}",
-                side=side,
-                seg=seg,
+                id=f"{sc.prefix}{head}",
+                side=sc.side,
+                seg=sc.seg,
                 head=head,
                 tokens=tuple(ids),
                 kind=MentionKind.NAME,
@@ -219,10 +257,13 @@ def extract_mentions(
                 sent=toks[head].sent,
             )
         )
-        used.update(ids)
+        sc.claimed.update(ids)
+    return out
 
-    # Person nouns the tagger took for something else ("la ingeniera" as a verb) still count after an article.
-    noun_like = {
+
+def _noun_like(sc: SegmentSide) -> set[int]:
+    rules, toks, parsed = sc.rules, sc.toks, sc.parsed
+    return {
         t.i
         for t in toks
         if rules.is_person_noun(t.text)
@@ -239,149 +280,176 @@ def extract_mentions(
             )
         )
     }
+
+
+def noun_mentions(sc: SegmentSide) -> list[Mention]:
+    """Role and kinship nouns with their agreeing words, and singular forms marking no binary gender ("niñe",
+    "l'étudiant·e": a person noun with a neutral mark)."""
+    rules, toks, parsed = sc.rules, sc.toks, sc.parsed
+    out = []
     for t in toks:
-        if t.i in used:
+        if t.i in sc.claimed:
             continue
-        # Role and kinship nouns.
-        if t.i in noun_like:
-            gender, counterpart = rules.noun_counterpart(t.text)
-            marks = []
-            if gender == Gender.FEM or (gender == Gender.MASC and not rules.articles):
-                # Languages without gendered articles (English) have only inherently gendered nouns here.
-                marks.append(_mark(side, seg, seg_id, t, gender, EvidenceKind.LEXICAL, W_LEXICAL, Rule.GENDERED_NOUN))
-            elif gender == Gender.MASC:
-                rule = (
-                    Rule.GENERIC_MASCULINE_NOUN
-                    if t.text.lower() in rules.generic_masculine
-                    else Rule.MASCULINE_NOUN_FORM
-                )
-                marks.append(_mark(side, seg, seg_id, t, gender, EvidenceKind.LEXICAL, W_UNMARKED_NOUN, rule))
-            marks += _honorifics_before(parsed, t.i, [t.i], rules, side, seg, seg_id)
-            marks += _np_marks(parsed, t.i, rules, side, seg, seg_id, noun_form=True)
-            if not any(mk.rule == Rule.DETERMINER_AGREEMENT for mk in marks) and t.i > 0:
-                before = toks[t.i - 1]
-                g = _article_form(before, rules)
-                if g in BINARY:
-                    marks.append(
-                        _mark(
-                            side, seg, seg_id, before, g, EvidenceKind.MORPHOLOGY, W_DETERMINER,
-                            Rule.DETERMINER_AGREEMENT
-                        )
-                    )
+        if t.i in sc.noun_like:
+            out.append(_role_noun(sc, t))
+        elif _neutral_word(parsed, t, rules) == "sing" and t.upos in ("NOUN", "PROPN"):
             role, clause = _role_and_clause(parsed, t.i)
-            marks += _predicate_marks(parsed, t.i, role, clause, rules, side, seg, seg_id, zero=False)
-            if gender == "epicene":
-                marks = []  # grammatical gender only: "la persona" may be anyone
-            masc_key = counterpart if gender == Gender.FEM else t.text.lower()
-            out.append(_noun_mention(prefix, side, seg, t, role, clause, masc_key, marks))
+            mark = sc.mark(t, Gender.NEUTRAL, EvidenceKind.MORPHOLOGY, W_LEXICAL, NEUTRAL_FORM_RULE)
+            out.append(_noun_mention(sc, t, role, clause, t.text.lower(), [mark]))
+        else:
             continue
-        # Singular forms marking no binary gender ("niñe", "l'étudiant·e"): a person noun, a neutral mark.
-        if _neutral_word(parsed, t, rules) == "sing" and t.upos in ("NOUN", "PROPN"):
-            role, clause = _role_and_clause(parsed, t.i)
-            mark = _mark(side, seg, seg_id, t, Gender.NEUTRAL, EvidenceKind.MORPHOLOGY, W_LEXICAL, NEUTRAL_FORM_RULE)
-            out.append(_noun_mention(prefix, side, seg, t, role, clause, t.text.lower(), [mark]))
+        sc.claimed.add(t.i)
+    return out
+
+
+def _role_noun(sc: SegmentSide, t: Token) -> Mention:
+    rules, toks, parsed = sc.rules, sc.toks, sc.parsed
+    gender, counterpart = rules.noun_counterpart(t.text)
+    marks = []
+    if gender == Gender.FEM or (gender == Gender.MASC and not rules.articles):
+        # Languages without gendered articles (English) have only inherently gendered nouns here.
+        marks.append(sc.mark(t, gender, EvidenceKind.LEXICAL, W_LEXICAL, Rule.GENDERED_NOUN))
+    elif gender == Gender.MASC:
+        rule = (
+            Rule.GENERIC_MASCULINE_NOUN
+            if t.text.lower() in rules.generic_masculine
+            else Rule.MASCULINE_NOUN_FORM
+        )
+        marks.append(sc.mark(t, gender, EvidenceKind.LEXICAL, W_UNMARKED_NOUN, rule))
+    marks += _honorifics_before(sc, t.i, [t.i])
+    marks += _np_marks(sc, t.i, noun_form=True)
+    if not any(mk.rule == Rule.DETERMINER_AGREEMENT for mk in marks) and t.i > 0:
+        before = toks[t.i - 1]
+        g = _article_form(before, rules)
+        if g in BINARY:
+            marks.append(sc.mark(before, g, EvidenceKind.MORPHOLOGY, W_DETERMINER, Rule.DETERMINER_AGREEMENT))
+    role, clause = _role_and_clause(parsed, t.i)
+    marks += _predicate_marks(sc, t.i, role, clause, zero=False)
+    if gender == "epicene":
+        marks = []  # grammatical gender only: "la persona" may be anyone
+    masc_key = counterpart if gender == Gender.FEM else t.text.lower()
+    return _noun_mention(sc, t, role, clause, masc_key, marks)
+
+
+def pronoun_mentions(sc: SegmentSide) -> list[Mention]:
+    """Personal, possessive and reflexive pronouns of the 3rd person (1st inside quotations), and
+    demonstratives that take up a person ("esta dice", "cette dernière")."""
+    rules, toks, parsed = sc.rules, sc.toks, sc.parsed
+    out = []
+    for t in toks:
+        if t.i in sc.claimed:
             continue
         # "cette dernière", "esta última" (the latter): a demonstrative's nominalised adjective takes up a
         # referent like a pronoun that may also stand for a thing. A demonstrative pronoun that says something
         # ("pero esta dice que...") is a person.
         speaker = _demonstrative_speaker(parsed, t, rules)
         if speaker or _latter(parsed, t, rules):
-            role, clause = _role_and_clause(parsed, t.i)
-            marks = [_mark(side, seg, seg_id, t, t.gender, EvidenceKind.PRONOUN, W_PRONOUN if speaker else W_CLITIC,
-                           Rule.DEMONSTRATIVE_SPEAKER if speaker else Rule.DEMONSTRATIVE_LATTER)]
-            marks += _predicate_marks(parsed, t.i, role, clause, rules, side, seg, seg_id, zero=False)
-            out.append(Mention(id=f"{prefix}{t.i}", side=side, seg=seg, head=t.i, tokens=(t.i,),
-                               kind=MentionKind.PRONOUN,
-                               text=t.text, start=t.start, end=t.end, number="sing", person="3",
-                               pron_type="personal", role=role, clause=clause, key=t.text.lower(),
-                               marks=tuple(marks), sent=t.sent, animate=speaker))
+            out.append(_demonstrative(sc, t, speaker))
             continue
-        # Pronouns (not an article the tagger misread before a person noun).
-        if t.i + 1 in noun_like and rules.article_gender(t.text) is not None:
+        # Not an article the tagger misread before a person noun.
+        if t.i + 1 in sc.noun_like and rules.article_gender(t.text) is not None:
             continue
-        neutral_form = (
-            any(f.gender == Gender.NEUTRAL for f in rules.pronoun(t.text)) and t.deprel in NEUTRAL_PRONOUN_RELS
-        )
-        # An inverted subject clitic ("dit-elle", "a-t-il") is a pronoun and the subject of the verb before it,
-        # whatever the tagger took it for.
-        inverted_verb = _inverted_subject_of(parsed, t)
-        inverted = inverted_verb >= 0 or (len(t.text) > 1 and t.text.startswith("-") and t.deprel.startswith("nsubj"))
-        if (t.upos in ("PRON", "DET") or neutral_form or inverted) and rules.pronoun(t.text):
-            # Taggers often miss neopronouns and "elle" as pronouns: their relation in the clause decides.
-            form = (_pick_pronoun_form(parsed, t, rules) if t.upos in ("PRON", "DET") or inverted
-                    else _neutral_form(t, rules))
-            if form is not None and form.stressed and _after_preposition(parsed, t):
-                form = replace(form, gender=form.stressed)
-            singular_they = form is not None and form.number == "plur" and form.singular_neutral
-            if form is None or (form.number == "plur" and not singular_they):
-                continue
-            if form.person == "1" and t.i not in quoted:
-                continue  # outside quotations "I" is the writer, not a person of the document
-            # An agreeing intensifier shows the person's gender even on an ungendered pronoun: "de sí misma",
-            # "ella misma", "sé stessa".
-            intensifiers = [k for k in parsed.children(t.i) if k.deprel == "amod" and k.upos in ("ADJ", "DET")
-                            and k.gender in BINARY and not _is_plural(k)]
-            if form.type == "reflexive" and form.gender is None and not intensifiers:
-                continue  # "se", "sí": mostly impersonal or passive markers, and never gendered
-            if is_expletive(parsed, t, rules):
-                continue
-            if not form.animate and form.case in ("acc", "dat") and not _verb_clitic(parsed, t):
-                continue  # "lo mismo", "lo que": the neuter article, not an object pronoun
-            marks = []
-            if singular_they:
-                # Kept only where its chain has one named or singular antecedent (see singular_they_ok).
-                marks.append(_mark(side, seg, seg_id, t, Gender.NEUTRAL,
-                                   EvidenceKind.PRONOUN, W_PRONOUN, SINGULAR_THEY_RULE))
-            elif form.gender and not _gender_doublet(parsed, t, rules):
-                weight = W_PRONOUN if form.animate else W_CLITIC
-                marks.append(
-                    _mark(side, seg, seg_id, t, form.gender, EvidenceKind.PRONOUN, weight, Rule.pronoun(form.type))
-                )
-            elif form.case == "acc" and (part := _participle_after_clitic(parsed, t)) is not None:
-                # "l'ha descritta", "elle l'a vue": the participle shows the elided clitic's gender.
-                marks.append(_mark(side, seg, seg_id, part, part.gender, EvidenceKind.AGREEMENT, W_CLITIC,
-                                   Rule.OBJECT_CLITIC_PARTICIPLE))
-            marks += [_mark(side, seg, seg_id, k, k.gender,
-                            EvidenceKind.AGREEMENT, W_ADJECTIVE, Rule.AGREEING_INTENSIFIER)
-                      for k in intensifiers]
-            role, clause = _role_and_clause(parsed, t.i)
-            if inverted_verb >= 0:
-                verb = toks[inverted_verb]
-                role = "nsubj"
-                clause = verb.head if verb.deprel in ("aux", "aux:pass", "aux:tense", "cop") else verb.i
-            if form.type == "possessive":
-                clause = _governing_clause(parsed, t.i)
-            if form.type == "personal":
-                marks += _predicate_marks(parsed, t.i, role, clause, rules, side, seg, seg_id, zero=False)
-            out.append(
-                Mention(
-                    id=f"{prefix}{t.i}",
-                    side=side,
-                    seg=seg,
-                    head=t.i,
-                    tokens=(t.i,),
-                    kind=MentionKind.PRONOUN,
-                    text=t.text,
-                    start=t.start,
-                    end=t.end,
-                    number=None if singular_they else form.number,
-                    person=form.person,
-                    pron_type=form.type,
-                    role=role,
-                    clause=clause,
-                    key=pronoun_key(t.text),
-                    marks=tuple(marks),
-                    sent=t.sent,
-                    animate=form.animate,
-                    case=form.case,
-                )
-            )
-
-    if rules.pro_drop:
-        out += _zero_subjects(parsed, seg, seg_id, side, rules, prefix, quoted)
-    out = [replace(m, quoted=True) if m.tokens and m.tokens[0] in quoted else m for m in out]
-    out.sort(key=lambda m: (m.start, m.kind == MentionKind.ZERO))
+        m = _pronoun(sc, t)
+        if m is not None:
+            out.append(m)
     return out
+
+
+def _demonstrative(sc: SegmentSide, t: Token, speaker: bool) -> Mention:
+    role, clause = _role_and_clause(sc.parsed, t.i)
+    marks = [sc.mark(t, t.gender, EvidenceKind.PRONOUN, W_PRONOUN if speaker else W_CLITIC,
+                     Rule.DEMONSTRATIVE_SPEAKER if speaker else Rule.DEMONSTRATIVE_LATTER)]
+    marks += _predicate_marks(sc, t.i, role, clause, zero=False)
+    return Mention(id=f"{sc.prefix}{t.i}", side=sc.side, seg=sc.seg, head=t.i, tokens=(t.i,),
+                   kind=MentionKind.PRONOUN, text=t.text, start=t.start, end=t.end, number="sing", person="3",
+                   pron_type="personal", role=role, clause=clause, key=t.text.lower(), marks=tuple(marks),
+                   sent=t.sent, animate=speaker)
+
+
+def _pronoun(sc: SegmentSide, t: Token) -> Mention | None:
+    """The pronoun mention of token t, or None where t is no person pronoun here."""
+    rules, toks, parsed = sc.rules, sc.toks, sc.parsed
+    neutral_form = (
+        any(f.gender == Gender.NEUTRAL for f in rules.pronoun(t.text)) and t.deprel in NEUTRAL_PRONOUN_RELS
+    )
+    # An inverted subject clitic ("dit-elle", "a-t-il") is a pronoun and the subject of the verb before it,
+    # whatever the tagger took it for.
+    inverted_verb = _inverted_subject_of(parsed, t)
+    inverted = inverted_verb >= 0 or (len(t.text) > 1 and t.text.startswith("-") and t.deprel.startswith("nsubj"))
+    if not ((t.upos in ("PRON", "DET") or neutral_form or inverted) and rules.pronoun(t.text)):
+        return None
+    # Taggers often miss neopronouns and "elle" as pronouns: their relation in the clause decides.
+    form = (_pick_pronoun_form(parsed, t, rules) if t.upos in ("PRON", "DET") or inverted
+            else _neutral_form(t, rules))
+    if form is not None and form.stressed and _after_preposition(parsed, t):
+        form = replace(form, gender=form.stressed)
+    singular_they = form is not None and form.number == "plur" and form.singular_neutral
+    if form is None or (form.number == "plur" and not singular_they):
+        return None
+    if form.person == "1" and t.i not in sc.quoted:
+        return None  # outside quotations "I" is the writer, not a person of the document
+    # An agreeing intensifier shows the person's gender even on an ungendered pronoun: "de sí misma",
+    # "ella misma", "sé stessa".
+    intensifiers = [k for k in parsed.children(t.i) if k.deprel == "amod" and k.upos in ("ADJ", "DET")
+                    and k.gender in BINARY and not _is_plural(k)]
+    if form.type == "reflexive" and form.gender is None and not intensifiers:
+        return None  # "se", "sí": mostly impersonal or passive markers, and never gendered
+    if is_expletive(parsed, t, rules):
+        return None
+    if not form.animate and form.case in ("acc", "dat") and not _verb_clitic(parsed, t):
+        return None  # "lo mismo", "lo que": the neuter article, not an object pronoun
+    marks = []
+    if singular_they:
+        # Kept only where its chain has one named or singular antecedent (see singular_they_ok).
+        marks.append(sc.mark(t, Gender.NEUTRAL, EvidenceKind.PRONOUN, W_PRONOUN, SINGULAR_THEY_RULE))
+    elif form.gender and not _gender_doublet(parsed, t, rules):
+        weight = W_PRONOUN if form.animate else W_CLITIC
+        marks.append(sc.mark(t, form.gender, EvidenceKind.PRONOUN, weight, Rule.pronoun(form.type)))
+    elif form.case == "acc" and (part := _participle_after_clitic(parsed, t)) is not None:
+        # "l'ha descritta", "elle l'a vue": the participle shows the elided clitic's gender.
+        marks.append(sc.mark(part, part.gender, EvidenceKind.AGREEMENT, W_CLITIC, Rule.OBJECT_CLITIC_PARTICIPLE))
+    marks += [sc.mark(k, k.gender, EvidenceKind.AGREEMENT, W_ADJECTIVE, Rule.AGREEING_INTENSIFIER)
+              for k in intensifiers]
+    role, clause = _role_and_clause(parsed, t.i)
+    if inverted_verb >= 0:
+        verb = toks[inverted_verb]
+        role = "nsubj"
+        clause = verb.head if verb.deprel in CLAUSE_FUNCTION_RELS else verb.i
+    if form.type == "possessive":
+        clause = _governing_clause(parsed, t.i)
+    if form.type == "personal":
+        marks += _predicate_marks(sc, t.i, role, clause, zero=False)
+    return Mention(
+        id=f"{sc.prefix}{t.i}",
+        side=sc.side,
+        seg=sc.seg,
+        head=t.i,
+        tokens=(t.i,),
+        kind=MentionKind.PRONOUN,
+        text=t.text,
+        start=t.start,
+        end=t.end,
+        number=None if singular_they else form.number,
+        person=form.person,
+        pron_type=form.type,
+        role=role,
+        clause=clause,
+        key=pronoun_key(t.text),
+        marks=tuple(marks),
+        sent=t.sent,
+        animate=form.animate,
+        case=form.case,
+    )
+
+
+def zero_subject_mentions(sc: SegmentSide) -> list[Mention]:
+    """Zero subjects, in pro-drop languages only."""
+    return _zero_subjects(sc) if sc.rules.pro_drop else []
+
+
+Extractor = Callable[[SegmentSide], list[Mention]]
+# In this order: a name takes its words first, then nouns, then pronouns, so that no word makes two mentions.
+EXTRACTORS: tuple[Extractor, ...] = (name_mentions, noun_mentions, pronoun_mentions, zero_subject_mentions)
 
 
 SINGULAR_THEY_RULE = Rule.SINGULAR_THEY
@@ -664,10 +732,10 @@ def _noun_modifier(parsed: ParsedText, t: Token, rules: LanguageRules) -> bool:
     )
 
 
-def _noun_mention(prefix, side, seg, t: Token, role: str, clause: int, key: str, marks) -> Mention:
+def _noun_mention(sc: SegmentSide, t: Token, role: str, clause: int, key: str, marks) -> Mention:
     """A singular person noun of one token."""
     return Mention(
-        id=f"{prefix}{t.i}", side=side, seg=seg, head=t.i, tokens=(t.i,), kind=MentionKind.NOUN, text=t.text,
+        id=f"{sc.prefix}{t.i}", side=sc.side, seg=sc.seg, head=t.i, tokens=(t.i,), kind=MentionKind.NOUN, text=t.text,
         start=t.start, end=t.end, number="sing", person="3", role=role, clause=clause, key=key, marks=tuple(marks),
         sent=t.sent,
     )
@@ -775,26 +843,29 @@ def _title_noun_gender(form: str, rules: LanguageRules) -> str | None:
     return None
 
 
-def _honorifics_before(parsed, head, ids, rules, side, seg, seg_id) -> list[EvidenceItem]:
+def _honorifics_before(sc: SegmentSide, head: int, ids: list[int]) -> list[EvidenceItem]:
+    """Honorifics hanging on a name or person noun (or heading it), as title marks."""
+    parsed, rules = sc.parsed, sc.rules
     marks = []
     for c in parsed.children(head):
         if c.i in ids:
             continue
         g = rules.honorific(c.text)
         if g and c.deprel in ("compound", "flat", "flat:name", "appos", "nmod", "det", "amod") and c.i < head:
-            marks.append(_mark(side, seg, seg_id, c, g, EvidenceKind.TITLE, W_TITLE, Rule.HONORIFIC))
+            marks.append(sc.mark(c, g, EvidenceKind.TITLE, W_TITLE, Rule.HONORIFIC))
     # "el señor García": the honorific may be the head with the name under it.
     # Not across a coordination ("el señor Ruiz y la jefa Ana Gil": señor is not Ana Gil's title).
     h = parsed.head_of(head)
     if h is not None and h.i < head and rules.honorific(h.text) and parsed.tokens[head].deprel in (
         "flat", "flat:name", "appos", "compound", "nmod", "nmod:appos"
     ):
-        marks.append(_mark(side, seg, seg_id, h, rules.honorific(h.text), EvidenceKind.TITLE, W_TITLE, Rule.HONORIFIC))
+        marks.append(sc.mark(h, rules.honorific(h.text), EvidenceKind.TITLE, W_TITLE, Rule.HONORIFIC))
     return marks
 
 
-def _np_marks(parsed, head, rules, side, seg, seg_id, noun_form: bool) -> list[EvidenceItem]:
+def _np_marks(sc: SegmentSide, head: int, noun_form: bool) -> list[EvidenceItem]:
     """Determiners and adjectives inside the noun phrase that agree with a person noun or name."""
+    parsed, rules = sc.parsed, sc.rules
     if not rules.dependents:
         return []
     marks = []
@@ -804,7 +875,7 @@ def _np_marks(parsed, head, rules, side, seg, seg_id, noun_form: bool) -> list[E
             # a bare preposition of the same form (Portuguese "a") does not (see _article_form).
             g = _article_form(c, rules)
             if g in BINARY and c.upos == "ADP":
-                marks.append(_mark(side, seg, seg_id, c, g,
+                marks.append(sc.mark(c, g,
                                    EvidenceKind.MORPHOLOGY, W_DETERMINER, Rule.DETERMINER_AGREEMENT))
             continue
         if c.deprel not in rules.dependents or _is_plural(c):
@@ -817,7 +888,7 @@ def _np_marks(parsed, head, rules, side, seg, seg_id, noun_form: bool) -> list[E
                 g = c.gender  # any determiner agrees with its noun: articles, demonstratives, "propio", "otro"
             if g in BINARY and c.i < head:
                 marks.append(
-                    _mark(side, seg, seg_id, c, g, EvidenceKind.MORPHOLOGY, W_DETERMINER, Rule.DETERMINER_AGREEMENT)
+                    sc.mark(c, g, EvidenceKind.MORPHOLOGY, W_DETERMINER, Rule.DETERMINER_AGREEMENT)
                 )
         elif c.upos in ("ADJ", "VERB") and c.gender in BINARY:
             lo, hi = sorted((c.i, head))
@@ -826,7 +897,7 @@ def _np_marks(parsed, head, rules, side, seg, seg_id, noun_form: bool) -> list[E
             if c.gender == Gender.MASC and not noun_form:
                 continue  # an adjective on a bare name: too often an unrelated modifier
             marks.append(
-                _mark(side, seg, seg_id, c, c.gender, EvidenceKind.AGREEMENT, W_ADJECTIVE, Rule.ADJECTIVE_AGREEMENT)
+                sc.mark(c, c.gender, EvidenceKind.AGREEMENT, W_ADJECTIVE, Rule.ADJECTIVE_AGREEMENT)
             )
     return marks
 
@@ -842,8 +913,9 @@ def _partitive_gender(parsed, pred: Token, rules) -> str | None:
     return g if g in BINARY else None
 
 
-def _predicate_marks(parsed, i, role, clause, rules, side, seg, seg_id, zero: bool) -> list[EvidenceItem]:
+def _predicate_marks(sc: SegmentSide, i: int, role: str, clause: int, zero: bool) -> list[EvidenceItem]:
     """Predicative adjectives, nouns and participles that agree with the subject of their clause."""
+    parsed, rules = sc.parsed, sc.rules
     if role not in SUBJECT_RELS and not zero:
         return []
     if not rules.copulas and not rules.agreeing_aux:
@@ -876,18 +948,18 @@ def _predicate_marks(parsed, i, role, clause, rules, side, seg, seg_id, zero: bo
             g = ng
             if g == Gender.MASC and tok.text.lower() in rules.generic_masculine:
                 marks.append(
-                    _mark(side, seg, seg_id, tok, g, EvidenceKind.LEXICAL, W_UNMARKED_NOUN, Rule.GENERIC_MASCULINE_NOUN)
+                    sc.mark(tok, g, EvidenceKind.LEXICAL, W_UNMARKED_NOUN, Rule.GENERIC_MASCULINE_NOUN)
                 )
                 return
         weight = W_ZERO_MASC_PREDICATE if zero and g == Gender.MASC else W_PREDICATE
-        marks.append(_mark(side, seg, seg_id, tok, g, EvidenceKind.AGREEMENT, weight, rule))
+        marks.append(sc.mark(tok, g, EvidenceKind.AGREEMENT, weight, rule))
 
     if has_cop and pred.upos in ("ADJ", "NOUN", "VERB"):
         add(pred, Rule.PREDICATIVE_WITH_COPULA)
     elif has_cop and pred.upos in ("PRON", "NUM", "DET") and (g := _partitive_gender(parsed, pred, rules)):
         # Partitive predicates agree with the subject: "es una de las pocas pilotos", "l'une des rares",
         # "es uno de mis amigos".
-        marks.append(_mark(side, seg, seg_id, pred, g,
+        marks.append(sc.mark(pred, g,
                            EvidenceKind.AGREEMENT, W_PREDICATE, Rule.PREDICATIVE_WITH_COPULA))
     elif pred.upos in ("VERB", "ADJ") and pred.participle:
         # An agreeing auxiliary makes the participle agree even under a compound tense ("ha sido elegida",
@@ -953,9 +1025,10 @@ def _predicate_marks(parsed, i, role, clause, rules, side, seg, seg_id, zero: bo
     return marks
 
 
-def _zero_subjects(parsed, seg, seg_id, side, rules, prefix, quoted=frozenset()) -> list[Mention]:
+def _zero_subjects(sc: SegmentSide) -> list[Mention]:
     """Finite 3rd-person singular clauses with no overt subject (pro-drop languages), and 1st-person singular
     ones inside quotations (the speaker: "«Estoy cansada», dijo")."""
+    parsed, rules, quoted = sc.parsed, sc.rules, sc.quoted
     out = []
     toks = parsed.tokens
     for t in toks:
@@ -983,12 +1056,12 @@ def _zero_subjects(parsed, seg, seg_id, side, rules, prefix, quoted=frozenset())
             continue  # existential "hay", weather "hace frío": no subject at all
         if any(k.text.lower() == "se" and k.deprel != "obj" for k in kids):
             continue  # impersonal or passive "se": the clause has no person subject
-        marks = _predicate_marks(parsed, -1, "nsubj", t.i, rules, side, seg, seg_id, zero=True)
+        marks = _predicate_marks(sc, -1, "nsubj", t.i, zero=True)
         out.append(
             Mention(
-                id=f"{prefix}z{t.i}",
-                side=side,
-                seg=seg,
+                id=f"{sc.prefix}z{t.i}",
+                side=sc.side,
+                seg=sc.seg,
                 head=t.i,
                 tokens=(finite.i,),
                 kind=MentionKind.ZERO,
