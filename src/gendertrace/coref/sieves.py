@@ -60,6 +60,7 @@ class _Clusters:
         self._members = {m.id: [m] for m in mentions}
         self._numbers = {m.id: {m.number} - {None} for m in mentions}
         self._genders = {m.id: _genders([m]) for m in mentions}
+        self._name_words = {m.id: set(m.key.split()) if m.kind == MentionKind.NAME else set() for m in mentions}
 
     def find(self, x: str) -> str:
         while self.parent[x] != x:
@@ -78,6 +79,10 @@ class _Clusters:
         """The binary genders the cluster's marks show."""
         return self._genders[self.find(x)]
 
+    def name_words(self, x: str) -> set[str]:
+        """The words of the cluster's names."""
+        return self._name_words[self.find(x)]
+
     def union(self, a: str, b: str) -> None:
         ra, rb = self.find(a), self.find(b)
         if ra != rb:
@@ -87,6 +92,7 @@ class _Clusters:
             self._members[first] = self._members[first] + self._members.pop(second)
             self._numbers[first] = self._numbers[first] | self._numbers.pop(second)
             self._genders[first] = self._genders[first] | self._genders.pop(second)
+            self._name_words[first] = self._name_words[first] | self._name_words.pop(second)
 
 
 def _order(m: Mention) -> tuple[int, int]:
@@ -566,8 +572,7 @@ def _unique_container(words: set[str], names: Sequence[Mention], cl: _Clusters) 
 
 def _different_names(cl: _Clusters, a: Mention, b: Mention) -> bool:
     """Two clusters that each carry a name, and no name in common: two people who share a role noun."""
-    na = {w for m in cl.members(a.id) if m.kind == MentionKind.NAME for w in m.key.split()}
-    nb = {w for m in cl.members(b.id) if m.kind == MentionKind.NAME for w in m.key.split()}
+    na, nb = cl.name_words(a.id), cl.name_words(b.id)
     return bool(na) and bool(nb) and not (na & nb)
 
 
@@ -684,116 +689,55 @@ def _salience(cand: Mention, m: Mention) -> float:
     return score
 
 
+@dataclass(frozen=True)
+class _Scope:
+    """The syntactic facts about a pronoun or zero subject that every candidate antecedent is tested against."""
+
+    containers: set[int]  # heads of the noun phrases a possessive stands in
+    reflexive_scope: set[int]  # clauses whose subject a reflexive may take
+    relative_heads: set[int]  # nouns a relative clause around a reflexive describes
+    governing: int  # the clause above a non-finite one, or -1
+    local_subject_clauses: set[int]  # the clause and those sharing its subject
+    own_numbers: set[str]
+    own_genders: set[str]
+
+    @classmethod
+    def of(cls, m: Mention, parsed: ParsedText) -> _Scope:
+        reflexive_scope = _reflexive_scope(parsed, m.head) if m.pron_type == "reflexive" else set()
+        return cls(
+            _noun_phrases_around(parsed, m.head) if m.pron_type == "possessive" else set(),
+            reflexive_scope,
+            # A reflexive in a relative clause whose subject is the relative pronoun is bound by the noun that
+            # clause describes ("a person who cares only about herself").
+            {h for h in (_relative_subject_head(parsed, k) for k in reflexive_scope) if h >= 0},
+            _nonfinite_under(parsed, m.clause),
+            _subject_clauses(parsed, m.clause),
+            {m.number} - {None},
+            _genders([m]),
+        )
+
+
 def _pick_antecedent(m: Mention, st: CorefState):
     """The best preceding candidate for a pronoun or zero subject, the compatible alternatives near it (a choice
     made only because nothing else was there counts itself as its alternative: it is uncertain), and every other
     candidate, best first."""
-    cl, parses, use_gender = st.clusters, st.parses, st.use_gender
-    own_numbers, own_genders = {m.number} - {None}, _genders([m])
+    cl, use_gender = st.clusters, st.use_gender
+    sc = _Scope.of(m, st.parses[m.seg])
     scored: dict[str, tuple[float, Mention]] = {}
     fallback = None
-    containers = _noun_phrases_around(parses[m.seg], m.head) if m.pron_type == "possessive" else set()
-    reflexive_scope = _reflexive_scope(parses[m.seg], m.head) if m.pron_type == "reflexive" else set()
-    # A reflexive in a relative clause whose subject is the relative pronoun is bound by the noun that clause
-    # describes ("a person who cares only about herself").
-    relative_heads = {h for h in (_relative_subject_head(parses[m.seg], k) for k in reflexive_scope) if h >= 0}
-    governing = _nonfinite_under(parses[m.seg], m.clause)  # the clause above a non-finite one, or -1
-    local_subject_clauses = _subject_clauses(parses[m.seg], m.clause)
     for c in st.window(m):
-        # A possessive may point forward to the subject of its own clause ("Por su parte, la ingeniera...").
-        # So may one inside a non-finite clause, whose understood subject is that of the clause it depends on
-        # ("Alejándose de su discurso, la candidata...").
-        cataphoric = (
-            m.pron_type == "possessive"
-            and c.seg == m.seg
-            and c.clause in (m.clause, governing)
-            and c.clause >= 0
-            and c.role in SUBJECT_RELS
-            and c.kind in NOMINAL_KINDS
-        )
-        if (_order(c) >= _order(m) and not cataphoric) or m.seg - c.seg > PRONOUN_WINDOW:
-            continue
-        # A possessive is not a person whose noun phrase contains it: "su hijo", "his son", "Alicia, su mujer",
-        # "el padre de su amiga" (the i-within-i condition).
-        if containers and any(x.seg == m.seg and x.head in containers for x in cl.members(c.id)):
+        if not _before_or_cataphoric(c, m, sc) or _contains_possessive(c, m, st, sc):
             continue
         if c.kind == MentionKind.PRONOUN and c.pron_type == "possessive" and c.seg == m.seg:
             # Two possessives of one sentence may belong to two people ("Ana y sus socios ... sus planes"):
             # an earlier one is the antecedent only when nothing else is ("su sueño ... su carrera").
             if m.pron_type == "possessive" and _order(c) < _order(m) and _compatible_sets(
-                    cl.numbers(c.id), own_numbers, cl.genders(c.id), own_genders, use_gender):
+                    cl.numbers(c.id), sc.own_numbers, cl.genders(c.id), sc.own_genders, use_gender):
                 fallback = c
             continue
-        if not c.animate or c.person == "1":
-            continue  # clitics that may stand for things are anaphors only; a quoted "I" belongs to its speaker
-        if cl.find(c.id) == cl.find(m.id):
+        if _excluded(c, m, st, sc):
             continue
-        # Binding: a non-reflexive personal pronoun does not corefer with the subject of its own clause (which a
-        # conjoined verb without a subject shares: "took a ladder and sat on him"), nor, as the subject of a
-        # non-finite clause ("allowed her to stay"), with the subject of the clause above.
-        if (
-            m.kind == MentionKind.PRONOUN
-            and m.pron_type == "personal"
-            and c.seg == m.seg
-            and c.role in SUBJECT_RELS
-        ):
-            if m.role not in SUBJECT_RELS and c.clause in local_subject_clauses:
-                continue
-            if (
-                m.role in SUBJECT_RELS
-                and governing == c.clause >= 0
-            ):
-                continue
-        # Binding principle C: a subject (overt or zero) does not corefer with a name or noun inside its own
-        # clause ("∅ dijo [que el sospechoso...]", "he said John..."), unless the name stands in an adjunct
-        # put before it, which the subject does not command ("Según la cuenta del director, ∅ ha hecho...",
-        # "According to the director's count, she has made..."), or before a semicolon: that joins independent
-        # clauses, whatever the parser hung the first one on ("Ana was born in Tarvel; she grew up...").
-        if (
-            m.role in SUBJECT_RELS
-            and c.seg == m.seg
-            and c.kind in NOMINAL_KINDS
-            and m.clause >= 0
-            and c.head in _subtree(parses[m.seg], m.clause)
-            and not _in_fronted_adjunct(parses[m.seg], c.head, m.clause)
-            and not _semicolon_between(parses[m.seg], c.head, m.head)
-        ):
-            continue
-        # A speaker outside a quotation is not a person mentioned inside it, and vice versa.
-        if c.seg == m.seg and c.sent == m.sent and c.quoted != m.quoted:
-            continue
-        # A reflexive takes the subject of its own clause: the verb it depends on, or the subject that verb
-        # shares or is controlled by ("tiene que sacar lo mejor de sí misma").
-        if m.pron_type == "reflexive" and not (c.seg == m.seg and (c.clause == m.clause
-                                                                   or c.clause in reflexive_scope
-                                                                   or c.head in relative_heads)):
-            continue
-        if not _compatible_sets(cl.numbers(c.id), own_numbers, cl.genders(c.id), own_genders, use_gender):
-            continue
-        # A clitic that may stand for a thing joins a person only where the person's known gender matches it.
-        if use_gender and not m.animate and m.gender not in cl.genders(c.id):
-            continue
-        s = _salience(c, m)
-        if c.seg == m.seg and c.head in relative_heads:
-            s += SALIENCE.relative_head
-        if (
-            m.pron_type == "possessive"
-            and c.seg == m.seg
-            and c.clause == m.clause
-            and c.role in SUBJECT_RELS
-        ):
-            s += SALIENCE.possessive_own_subject  # possessives lean to the subject of their own clause
-        if (
-            m.pron_type == "possessive"
-            and c.seg == m.seg
-            and c.head == _relative_antecedent(parses[m.seg], m.clause)
-        ):
-            # In a relative clause, the noun it describes is that clause's subject or object.
-            s += SALIENCE.possessive_relative_antecedent
-        # Entities mentioned often stay salient; on the source side a matching known gender is preferred.
-        s += min(SALIENCE.per_mention * (len(cl.members(c.id)) - 1), SALIENCE.per_mention_cap)
-        if use_gender and m.gender and m.gender in cl.genders(c.id):
-            s += SALIENCE.known_gender
+        s = _candidate_salience(c, m, st, sc)
         root = cl.find(c.id)
         if root not in scored or s > scored[root][0]:
             scored[root] = (s, c)
@@ -806,6 +750,114 @@ def _pick_antecedent(m: Mention, st: CorefState):
         # Gender-blind side: an alternative only matters when its gender would fit the pronoun.
         alternatives = [c for c in alternatives if m.gender in (cl.genders(c.id) or {m.gender})]
     return best, alternatives, [c for _, c in ranked[1:]]
+
+
+def _before_or_cataphoric(c: Mention, m: Mention, sc: _Scope) -> bool:
+    """Whether c precedes m within the window, or is the subject a possessive may point forward to: that of
+    its own clause ("Por su parte, la ingeniera..."), or, inside a non-finite clause, that of the clause it
+    depends on ("Alejándose de su discurso, la candidata...")."""
+    cataphoric = (
+        m.pron_type == "possessive"
+        and c.seg == m.seg
+        and c.clause in (m.clause, sc.governing)
+        and c.clause >= 0
+        and c.role in SUBJECT_RELS
+        and c.kind in NOMINAL_KINDS
+    )
+    return not ((_order(c) >= _order(m) and not cataphoric) or m.seg - c.seg > PRONOUN_WINDOW)
+
+
+def _contains_possessive(c: Mention, m: Mention, st: CorefState, sc: _Scope) -> bool:
+    """A possessive is not a person whose noun phrase contains it: "su hijo", "his son", "Alicia, su mujer",
+    "el padre de su amiga" (the i-within-i condition)."""
+    return bool(sc.containers) and any(x.seg == m.seg and x.head in sc.containers
+                                       for x in st.clusters.members(c.id))
+
+
+def _excluded(c: Mention, m: Mention, st: CorefState, sc: _Scope) -> bool:
+    """Whether binding, quotation, reflexive scope or agreement rules candidate c out for m."""
+    cl, parses, use_gender = st.clusters, st.parses, st.use_gender
+    own_numbers, own_genders = sc.own_numbers, sc.own_genders
+    local_subject_clauses, governing = sc.local_subject_clauses, sc.governing
+    reflexive_scope, relative_heads = sc.reflexive_scope, sc.relative_heads
+    if not c.animate or c.person == "1":
+        return True  # clitics that may stand for things are anaphors only; a quoted "I" belongs to its speaker
+    if cl.find(c.id) == cl.find(m.id):
+        return True
+    # Binding: a non-reflexive personal pronoun does not corefer with the subject of its own clause (which a
+    # conjoined verb without a subject shares: "took a ladder and sat on him"), nor, as the subject of a
+    # non-finite clause ("allowed her to stay"), with the subject of the clause above.
+    if (
+        m.kind == MentionKind.PRONOUN
+        and m.pron_type == "personal"
+        and c.seg == m.seg
+        and c.role in SUBJECT_RELS
+    ):
+        if m.role not in SUBJECT_RELS and c.clause in local_subject_clauses:
+            return True
+        if (
+            m.role in SUBJECT_RELS
+            and governing == c.clause >= 0
+        ):
+            return True
+    # Binding principle C: a subject (overt or zero) does not corefer with a name or noun inside its own
+    # clause ("∅ dijo [que el sospechoso...]", "he said John..."), unless the name stands in an adjunct
+    # put before it, which the subject does not command ("Según la cuenta del director, ∅ ha hecho...",
+    # "According to the director's count, she has made..."), or before a semicolon: that joins independent
+    # clauses, whatever the parser hung the first one on ("Ana was born in Tarvel; she grew up...").
+    if (
+        m.role in SUBJECT_RELS
+        and c.seg == m.seg
+        and c.kind in NOMINAL_KINDS
+        and m.clause >= 0
+        and c.head in _subtree(parses[m.seg], m.clause)
+        and not _in_fronted_adjunct(parses[m.seg], c.head, m.clause)
+        and not _semicolon_between(parses[m.seg], c.head, m.head)
+    ):
+        return True
+    # A speaker outside a quotation is not a person mentioned inside it, and vice versa.
+    if c.seg == m.seg and c.sent == m.sent and c.quoted != m.quoted:
+        return True
+    # A reflexive takes the subject of its own clause: the verb it depends on, or the subject that verb
+    # shares or is controlled by ("tiene que sacar lo mejor de sí misma").
+    if m.pron_type == "reflexive" and not (c.seg == m.seg and (c.clause == m.clause
+                                                               or c.clause in reflexive_scope
+                                                               or c.head in relative_heads)):
+        return True
+    if not _compatible_sets(cl.numbers(c.id), own_numbers, cl.genders(c.id), own_genders, use_gender):
+        return True
+    # A clitic that may stand for a thing joins a person only where the person's known gender matches it.
+    if use_gender and not m.animate and m.gender not in cl.genders(c.id):
+        return True
+    return False
+
+
+def _candidate_salience(c: Mention, m: Mention, st: CorefState, sc: _Scope) -> float:
+    """How salient candidate c is as m's antecedent."""
+    cl, parses, use_gender = st.clusters, st.parses, st.use_gender
+    relative_heads = sc.relative_heads
+    s = _salience(c, m)
+    if c.seg == m.seg and c.head in relative_heads:
+        s += SALIENCE.relative_head
+    if (
+        m.pron_type == "possessive"
+        and c.seg == m.seg
+        and c.clause == m.clause
+        and c.role in SUBJECT_RELS
+    ):
+        s += SALIENCE.possessive_own_subject  # possessives lean to the subject of their own clause
+    if (
+        m.pron_type == "possessive"
+        and c.seg == m.seg
+        and c.head == _relative_antecedent(parses[m.seg], m.clause)
+    ):
+        # In a relative clause, the noun it describes is that clause's subject or object.
+        s += SALIENCE.possessive_relative_antecedent
+    # Entities mentioned often stay salient; on the source side a matching known gender is preferred.
+    s += min(SALIENCE.per_mention * (len(cl.members(c.id)) - 1), SALIENCE.per_mention_cap)
+    if use_gender and m.gender and m.gender in cl.genders(c.id):
+        s += SALIENCE.known_gender
+    return s
 
 
 def _thing_subject_before(m: Mention, best: Mention, mention_tokens: set[tuple[int, int]],
