@@ -97,7 +97,8 @@ class Analysis:
         c = self.context
         assert self.stats is not None, "the findings stage has not run"
         return DocumentResult(self.document.doc_id, c.src_lang, c.tgt_lang, tuple(self.entities),
-                              tuple(self.findings), self.stats, tuple(self.source.chains) + tuple(self.target.chains))
+                              tuple(self.findings), self.stats, tuple(self.source.chains) + tuple(self.target.chains),
+                              links=dict(self.links))
 
 
 # A stage reads the analysis and writes its part of it; the scorer runs its stages in order.

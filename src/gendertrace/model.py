@@ -317,6 +317,7 @@ class Finding:
     evidence: tuple[EvidenceItem, ...]
     message: str = ""
     seg: int = 0
+    mention: str = ""  # the target mention the word belongs to: its link is DocumentResult.links[mention]
 
     @property
     def span(self) -> Span:
@@ -371,6 +372,8 @@ class DocumentResult:
     stats: DocumentStats
     chains: tuple[Chain, ...] = ()
     skipped: str = ""  # why the document was not scored, when it was not
+    # Target mention id -> its link to a source chain (method, confidence, the source mention it goes through).
+    links: Mapping[str, Link] = field(default_factory=dict, compare=False)
 
     def to_json(self) -> dict:
         out = {

@@ -80,8 +80,8 @@ def test_worked_example_he_contradicts_the_source():
     assert [(e.side, e.seg_id, e.text, e.gender) for e in f.evidence] == [
         ("source", "1", "La", "fem"), ("source", "2", "cansada", "fem")]
     # The finding's word is reachable through its link: projected from the source clause's zero subject.
-    link = a.links[a.target.resolved()[-1].id]
-    assert (link.method, link.via) == ("projection", "s1.z1")
+    link = a.result().links[f.mention]
+    assert (f.mention, link.method, link.via) == ("t1.0", "projection", "s1.z1")
     assert [(m.kind, m.text) for m in a.source.chains[0].mentions] == [
         ("noun", "piloto"), ("name", "Amaia Zubelzu"), ("zero", "Estaba"), ("zero", "sonrió")]
     stats = a.result().stats

@@ -476,4 +476,5 @@ def _finding(
         evidence=tuple(support),
         message=msg,
         seg=r.seg,
+        mention=r.mention.id,
     )
