@@ -913,23 +913,23 @@ def _partitive_gender(parsed, pred: Token, rules) -> str | None:
     return g if g in BINARY else None
 
 
-def _predicate_marks(sc: SegmentSide, i: int, role: str, clause: int, zero: bool) -> list[EvidenceItem]:
-    """Predicative adjectives, nouns and participles that agree with the subject of their clause."""
-    parsed, rules = sc.parsed, sc.rules
-    if role not in SUBJECT_RELS and not zero:
-        return []
-    if not rules.copulas and not rules.agreeing_aux:
-        return []
-    if clause < 0 or clause == i:
-        return []
-    pred = parsed.tokens[clause]
-    marks = []
-    kids = parsed.children(clause)
-    aux_lemmas = {k.lemma.lower() for k in kids if k.deprel in ("aux", "aux:pass", "aux:tense", "cop")}
-    has_cop = any(k.deprel == "cop" for k in kids)
-    has_pass = any(k.deprel == "aux:pass" for k in kids)
+@dataclass
+class _PredicateMarks:
+    """The agreement marks the predicates of one clause put on its subject, gathered by the functions below."""
 
-    def add(tok: Token, rule: str) -> None:
+    sc: SegmentSide
+    zero: bool  # the subject is a zero subject: its masculine agreement counts for less
+    pred: Token  # the clause head
+    kids: list[Token]
+    marks: list[EvidenceItem] = field(default_factory=list)
+
+    @property
+    def has_cop(self) -> bool:
+        return any(k.deprel == "cop" for k in self.kids)
+
+    def add(self, tok: Token, rule: str) -> None:
+        """A mark on `tok` where its form agrees in gender and is singular (a person noun by its own gender)."""
+        rules = self.sc.rules
         if not tok.text[:1].isalpha():
             return  # a misparse made punctuation the predicate
         g = tok.gender
@@ -947,25 +947,53 @@ def _predicate_marks(sc: SegmentSide, i: int, role: str, clause: int, zero: bool
                 return
             g = ng
             if g == Gender.MASC and tok.text.lower() in rules.generic_masculine:
-                marks.append(
-                    sc.mark(tok, g, EvidenceKind.LEXICAL, W_UNMARKED_NOUN, Rule.GENERIC_MASCULINE_NOUN)
+                self.marks.append(
+                    self.sc.mark(tok, g, EvidenceKind.LEXICAL, W_UNMARKED_NOUN, Rule.GENERIC_MASCULINE_NOUN)
                 )
                 return
-        weight = W_ZERO_MASC_PREDICATE if zero and g == Gender.MASC else W_PREDICATE
-        marks.append(sc.mark(tok, g, EvidenceKind.AGREEMENT, weight, rule))
+        weight = W_ZERO_MASC_PREDICATE if self.zero and g == Gender.MASC else W_PREDICATE
+        self.marks.append(self.sc.mark(tok, g, EvidenceKind.AGREEMENT, weight, rule))
 
+
+def _predicate_marks(sc: SegmentSide, i: int, role: str, clause: int, zero: bool) -> list[EvidenceItem]:
+    """Predicative adjectives, nouns and participles that agree with the subject of their clause."""
+    rules = sc.rules
+    if role not in SUBJECT_RELS and not zero:
+        return []
+    if not rules.copulas and not rules.agreeing_aux:
+        return []
+    if clause < 0 or clause == i:
+        return []
+    pm = _PredicateMarks(sc, zero, sc.parsed.tokens[clause], sc.parsed.children(clause))
+    for gather in (_main_predicate, _participle_copula, _coordinated_predicates, _secondary_predicates,
+                   _controlled_participles):
+        gather(pm)
+    return pm.marks
+
+
+def _main_predicate(pm: _PredicateMarks) -> None:
+    """The clause head: with a copula, or a participle under an agreeing or passive auxiliary."""
+    parsed, rules, pred, kids = pm.sc.parsed, pm.sc.rules, pm.pred, pm.kids
+    aux_lemmas = {k.lemma.lower() for k in kids if k.deprel in ("aux", "aux:pass", "aux:tense", "cop")}
+    has_cop = pm.has_cop
+    has_pass = any(k.deprel == "aux:pass" for k in kids)
     if has_cop and pred.upos in ("ADJ", "NOUN", "VERB"):
-        add(pred, Rule.PREDICATIVE_WITH_COPULA)
+        pm.add(pred, Rule.PREDICATIVE_WITH_COPULA)
     elif has_cop and pred.upos in ("PRON", "NUM", "DET") and (g := _partitive_gender(parsed, pred, rules)):
         # Partitive predicates agree with the subject: "es una de las pocas pilotos", "l'une des rares",
         # "es uno de mis amigos".
-        marks.append(sc.mark(pred, g,
-                           EvidenceKind.AGREEMENT, W_PREDICATE, Rule.PREDICATIVE_WITH_COPULA))
+        pm.marks.append(pm.sc.mark(pred, g, EvidenceKind.AGREEMENT, W_PREDICATE, Rule.PREDICATIVE_WITH_COPULA))
     elif pred.upos in ("VERB", "ADJ") and pred.participle:
         # An agreeing auxiliary makes the participle agree even under a compound tense ("ha sido elegida",
         # "a été élue"); with only the compound-tense auxiliary it is invariable ("ha operado", "a opéré").
         if has_pass or aux_lemmas & rules.agreeing_aux:
-            add(pred, Rule.PARTICIPLE_WITH_AGREEING_AUX)
+            pm.add(pred, Rule.PARTICIPLE_WITH_AGREEING_AUX)
+
+
+def _participle_copula(pm: _PredicateMarks) -> None:
+    """A copula that is itself a participle, under an auxiliary that makes participles agree."""
+    rules, kids = pm.sc.rules, pm.kids
+    has_cop = pm.has_cop
     # A copula that is itself a participle agrees where its auxiliary makes participles agree: Italian "è
     # stata gentile" (essere takes essere: the participle agrees with the subject), not Spanish "ha sido".
     if has_cop:
@@ -976,16 +1004,26 @@ def _predicate_marks(sc: SegmentSide, i: int, role: str, clause: int, zero: bool
                 and any(a.deprel in ("aux", "aux:pass") and a.lemma.lower() in rules.agreeing_aux
                         for a in kids)
             ):
-                add(k, Rule.PARTICIPLE_WITH_AGREEING_AUX)
+                pm.add(k, Rule.PARTICIPLE_WITH_AGREEING_AUX)
+
+
+def _coordinated_predicates(pm: _PredicateMarks) -> None:
+    """Predicates coordinated with one already marked."""
+    pred, kids = pm.pred, pm.kids
     # Coordinated predicates agree with the same subject ("cansada pero muy satisfecha").
-    if marks and pred.upos in ("ADJ", "VERB"):
+    if pm.marks and pred.upos in ("ADJ", "VERB"):
         for k in kids:
             if (
                 k.deprel == "conj"
                 and k.upos in ("ADJ", "VERB")
                 and (k.upos == "ADJ" or k.participle)
             ):
-                add(k, Rule.PREDICATIVE_WITH_COPULA)
+                pm.add(k, Rule.PREDICATIVE_WITH_COPULA)
+
+
+def _secondary_predicates(pm: _PredicateMarks) -> None:
+    """Adjectives hanging on the verb itself that describe its subject."""
+    parsed, rules, pred, kids = pm.sc.parsed, pm.sc.rules, pm.pred, pm.kids
     # Secondary predicates ("quedó sorprendida", "se mostró convencida", "declaró emocionada"): an adjective
     # hanging on the verb itself describes the subject, unless the verb has a nominal object it could describe.
     if pred.lemma.lower() in rules.copulas:
@@ -995,7 +1033,7 @@ def _predicate_marks(sc: SegmentSide, i: int, role: str, clause: int, zero: bool
                 and k.upos in ("ADJ", "VERB")
                 and (k.upos == "ADJ" or k.participle)
             ):
-                add(k, Rule.SECONDARY_PREDICATE)
+                pm.add(k, Rule.SECONDARY_PREDICATE)
     elif pred.upos == "VERB" and not any(
         k.deprel in ("obj", "iobj") and k.upos in ("NOUN", "PROPN", "PRON") for k in kids
     ):
@@ -1009,7 +1047,12 @@ def _predicate_marks(sc: SegmentSide, i: int, role: str, clause: int, zero: bool
                 and not any(d.deprel == "det" or d.deprel == "cop" or d.deprel.startswith("nsubj")
                             for d in parsed.children(k.i))
             ):
-                add(k, Rule.SECONDARY_PREDICATE)
+                pm.add(k, Rule.SECONDARY_PREDICATE)
+
+
+def _controlled_participles(pm: _PredicateMarks) -> None:
+    """Participles of subjectless non-finite clauses under an agreeing auxiliary, controlled by the subject."""
+    parsed, rules, kids = pm.sc.parsed, pm.sc.rules, pm.kids
     # A participle heading a non-finite adjunct or complement with no subject of its own, under an agreeing
     # auxiliary, agrees with the subject that controls it ("dopo essersi offerto", "après être arrivée", "tras
     # ser elegida").
@@ -1021,8 +1064,7 @@ def _predicate_marks(sc: SegmentSide, i: int, role: str, clause: int, zero: bool
         if (auxes and not any(d.finite for d in auxes)
                 and any(d.lemma.lower() in rules.agreeing_aux for d in auxes)
                 and not any(d.deprel.startswith("nsubj") for d in own)):
-            add(k, Rule.CONTROLLED_CLAUSE_PARTICIPLE)
-    return marks
+            pm.add(k, Rule.CONTROLLED_CLAUSE_PARTICIPLE)
 
 
 def _zero_subjects(sc: SegmentSide) -> list[Mention]:
