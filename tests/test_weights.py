@@ -83,3 +83,29 @@ def test_signature_carries_the_weights_digest_and_version():
     assert sig["tool"] == f"gendertrace {__version__}"
     assert scorer.settings.min_confidence == WEIGHTS.defaults.min_confidence
     assert scorer.settings.batch_size == WEIGHTS.defaults.batch_docs
+
+
+def test_a_bad_weights_file_is_a_one_line_message_from_the_command_line(tmp_path):
+    import os
+    import shutil
+    import subprocess
+    import sys
+
+    from gendertrace.rules.loader import rules_dir
+
+    rules = tmp_path / "rules"
+    shutil.copytree(rules_dir(), rules)
+    weights = rules / "scoring" / "weights.yaml"
+    text = weights.read_text(encoding="utf-8")
+    weights.write_text(text.replace("  pronoun: 1.0", "  pronoun: heavy", 1), encoding="utf-8")
+    corpus = tmp_path / "in.tsv"
+    corpus.write_text("doc_id\tseg_id\tsource\ttarget\nd\t1\tElla llegó.\tShe arrived.\n", encoding="utf-8")
+    run = subprocess.run(
+        [sys.executable, "-m", "gendertrace.cli", "score", str(corpus), "-s", "es", "-t", "en", "-o",
+         str(tmp_path / "out.jsonl")],
+        capture_output=True, text=True, env={**os.environ, "GENDERTRACE_RULES": str(rules)}, timeout=300,
+    )
+    assert run.returncode == 1
+    assert "Traceback" not in run.stderr
+    assert run.stderr.strip().splitlines() == [
+        f"Error: {weights}: evidence.pronoun: expected a number, found 'heavy'"]

@@ -7,21 +7,23 @@ Python API (the command line is built on it)::
     for result in scorer.score(read_corpus("batch.tsv")):
         print(result.doc_id, result.stats.consistent, "/", result.stats.checked)
 
-`score_file` (what `gendertrace score` does) and `explain_document` are importable from here too; they load
-the file-level machinery (streaming, worker processes) only when first used.
+`score_file` (what `gendertrace score` does) and `explain_document` are importable from here too.
 """
 
 from gendertrace._version import __version__
-from gendertrace.io.readers import read_corpus
-from gendertrace.pipeline import Scorer, ScoreSettings
 
 __all__ = ["Scorer", "ScoreSettings", "__version__", "explain_document", "read_corpus", "score_file"]
 
+# Loaded on first use: the scorer reads the rules' weights file, and a bad one is reported by the command
+# that needs it (one line), not by importing the package.
+_LAZY = {"Scorer": "gendertrace.pipeline", "ScoreSettings": "gendertrace.pipeline",
+         "read_corpus": "gendertrace.io.readers", "score_file": "gendertrace.api",
+         "explain_document": "gendertrace.api"}
+
 
 def __getattr__(name: str):
-    # The file-level API imports the streaming runner, which imports the scorer: loaded on first use.
-    if name in ("score_file", "explain_document"):
-        from gendertrace import api
+    if name in _LAZY:
+        import importlib
 
-        return getattr(api, name)
+        return getattr(importlib.import_module(_LAZY[name]), name)
     raise AttributeError(f"module 'gendertrace' has no attribute {name!r}")
