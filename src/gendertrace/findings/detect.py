@@ -26,6 +26,7 @@ from gendertrace.vocab import (
     EvidenceKind,
     FindingKind,
     Gender,
+    LinkMethod,
     MentionKind,
 )
 
@@ -371,7 +372,7 @@ DIRECT_REACH = WEIGHTS.findings.direct_reach
 def _direct_verdict(r: Reference, links: dict[str, Link], e: Entity):
     """The gender the linked source mention shows by its own marks, with those marks; None if it shows none."""
     link = links.get(r.mention.id)
-    if link is None or link.method not in ("alignment", "projection") or not link.via:
+    if link is None or link.method not in (LinkMethod.ALIGNMENT, LinkMethod.PROJECTION) or not link.via:
         return None
     via = next((s for s in e.source_mentions if s.id == link.via), None)
     if via is None or not via.marks:
@@ -447,7 +448,7 @@ def _checkable(m: Mention, links: dict[str, Link], e: Entity) -> bool:
     if m.animate:
         return True
     link = links.get(m.id)
-    if link is None or link.method != "alignment":
+    if link is None or link.method != LinkMethod.ALIGNMENT:
         return False
     via = next((s for s in e.source_mentions if s.id == link.via), None)
     return via is not None and via.kind == MentionKind.PRONOUN and via.case in ("acc", "dat")

@@ -18,7 +18,7 @@ from gendertrace.coref.sieves import Resolution
 from gendertrace.link.align import Alignment
 from gendertrace.model import Link, Mention, ParsedText
 from gendertrace.settings import WEIGHTS
-from gendertrace.vocab import CLAUSE_FUNCTION_RELS, SUBJECT_RELS, MentionKind
+from gendertrace.vocab import CLAUSE_FUNCTION_RELS, SUBJECT_RELS, LinkMethod, MentionKind
 
 # Confidence by link method: rules/scoring/weights.yaml, section "links".
 CONF_NAME = WEIGHTS.links.name
@@ -100,7 +100,7 @@ def by_lexicon(ctx: LinkContext, m: Mention, link: Link | None) -> Link | None:
         if s.seg == m.seg and s.kind == MentionKind.NOUN and m.text.lower() in ctx.lexicon.get(s.text.lower(), ())
     ]
     if len({c.chain for c in cands}) == 1:
-        return Link(m.id, cands[0].chain, "lexicon", CONF_LEXICON, cands[0].id)
+        return Link(m.id, cands[0].chain, LinkMethod.LEXICON, CONF_LEXICON, cands[0].id)
     return None
 
 
@@ -118,7 +118,7 @@ def by_alignment(ctx: LinkContext, m: Mention, link: Link | None) -> Link | None
             via = {v for v in via if v.gender is not None}
     hits = {v.chain for v in via}
     if len(hits) == 1:
-        return Link(m.id, hits.pop(), "alignment", CONF_ALIGNED, min(via, key=lambda v: v.start).id)
+        return Link(m.id, hits.pop(), LinkMethod.ALIGNMENT, CONF_ALIGNED, min(via, key=lambda v: v.start).id)
     return None
 
 
@@ -143,7 +143,7 @@ def by_projection(ctx: LinkContext, m: Mention, link: Link | None) -> Link | Non
             if via_m not in subjects.values() and len(subjects) == 1:
                 ((cid, subj),) = subjects.items()
                 if cid != link.source_chain:
-                    return Link(m.id, cid, "projection", CONF_PROJECTED, subj.id)
+                    return Link(m.id, cid, LinkMethod.PROJECTION, CONF_PROJECTED, subj.id)
     return link
 
 
@@ -153,15 +153,16 @@ def names_speak_for_nouns(ctx: LinkContext, links: dict[str, Link]) -> None:
     "director" with."""
     for group in _target_chains(ctx).values():
         named = {links[o.id].source_chain for o in group if o.kind == MentionKind.NAME and o.id in links
-                 and links[o.id].method == "name"}
+                 and links[o.id].method == LinkMethod.NAME}
         if len(named) != 1:
             continue
         (target_chain,) = named
         for o in group:
             link = links.get(o.id)
             if (o.kind == MentionKind.NOUN and not o.antecedent and link is not None
-                    and link.method in ("alignment", "projection") and link.source_chain != target_chain):
-                links[o.id] = Link(o.id, target_chain, "chain", CONF_CHAIN)
+                    and link.method in (LinkMethod.ALIGNMENT, LinkMethod.PROJECTION)
+                    and link.source_chain != target_chain):
+                links[o.id] = Link(o.id, target_chain, LinkMethod.CHAIN, CONF_CHAIN)
 
 
 def inherit_through_chain(ctx: LinkContext, links: dict[str, Link]) -> None:
@@ -174,7 +175,7 @@ def inherit_through_chain(ctx: LinkContext, links: dict[str, Link]) -> None:
         if votes:
             (best, n), *rest = votes.most_common()
             if not rest or n > rest[0][1]:
-                links[m.id] = Link(m.id, best, "chain", CONF_CHAIN * m.certainty)
+                links[m.id] = Link(m.id, best, LinkMethod.CHAIN, CONF_CHAIN * m.certainty)
 
 
 DIRECT_METHODS: tuple[DirectMethod, ...] = (by_name, by_lexicon, by_alignment, by_projection)
@@ -229,10 +230,10 @@ def _name_link(m: Mention, src_names: Sequence[Mention]) -> Link | None:
     words = set(m.key.split())
     exact = [s for s in src_names if s.key == m.key]
     if len({s.chain for s in exact}) == 1:
-        return Link(m.id, exact[0].chain, "name", CONF_NAME, exact[0].id)
+        return Link(m.id, exact[0].chain, LinkMethod.NAME, CONF_NAME, exact[0].id)
     partial = [s for s in src_names if words and (words <= set(s.key.split()) or set(s.key.split()) <= words)]
     if len({s.chain for s in partial}) == 1:
-        return Link(m.id, partial[0].chain, "name", CONF_NAME * CONF_PARTIAL_NAME, partial[0].id)
+        return Link(m.id, partial[0].chain, LinkMethod.NAME, CONF_NAME * CONF_PARTIAL_NAME, partial[0].id)
     return None
 
 
@@ -270,5 +271,5 @@ def _projected(ctx: LinkContext, m: Mention) -> Link | None:
     subjects = _aligned_subjects(ctx, m)
     if len(subjects) == 1:
         ((cid, subj),) = subjects.items()
-        return Link(m.id, cid, "projection", CONF_PROJECTED, subj.id)
+        return Link(m.id, cid, LinkMethod.PROJECTION, CONF_PROJECTED, subj.id)
     return None
