@@ -12,10 +12,23 @@ from collections.abc import Callable, Iterable
 from dataclasses import dataclass, field, replace
 from functools import cached_property
 
+from gendertrace.mentions.agreement import (
+    W_ADJECTIVE,
+    W_CLITIC,
+    W_DETERMINER,
+    W_LEXICAL,
+    W_PRONOUN,
+    W_TITLE,
+    W_UNMARKED_NOUN,
+    article_form,
+    honorifics_before,
+    is_plural,
+    np_marks,
+    predicate_marks,
+)
 from gendertrace.model import EvidenceItem, Mention, ParsedText, Side, Token
 from gendertrace.rules import LanguageRules
 from gendertrace.rules.loader import pronoun_key
-from gendertrace.settings import WEIGHTS
 from gendertrace.vocab import (
     BINARY,
     CLAUSE_FUNCTION_RELS,
@@ -30,17 +43,6 @@ from gendertrace.vocab import (
     NeutralRule,
     Rule,
 )
-
-# Weights of the kinds of marks: rules/scoring/weights.yaml, section "evidence".
-W_PRONOUN = WEIGHTS.evidence.pronoun
-W_CLITIC = WEIGHTS.evidence.clitic
-W_TITLE = WEIGHTS.evidence.title
-W_LEXICAL = WEIGHTS.evidence.lexical
-W_UNMARKED_NOUN = WEIGHTS.evidence.unmarked_noun
-W_DETERMINER = WEIGHTS.evidence.determiner
-W_ADJECTIVE = WEIGHTS.evidence.adjective
-W_PREDICATE = WEIGHTS.evidence.predicate
-W_ZERO_MASC_PREDICATE = WEIGHTS.evidence.zero_masc_predicate
 
 
 def _mark(
@@ -68,10 +70,6 @@ def _mark(
         rule=rule,
         tokens=tuple(t.i for t in toks),
     )
-
-
-def _is_plural(tok: Token) -> bool:
-    return tok.feat("Number") == "Plur"
 
 
 def _name_spans(parsed: ParsedText, known_names: set[str],
@@ -233,10 +231,10 @@ def name_mentions(sc: SegmentSide) -> list[Mention]:
             continue
         ids = [w.i for w in words]
         head = _span_head(parsed, ids)
-        marks = title_marks + _honorifics_before(sc, head, ids)
-        marks += _np_marks(sc, head, noun_form=False)
+        marks = title_marks + honorifics_before(sc, head, ids)
+        marks += np_marks(sc, head, noun_form=False)
         role, clause = _role_and_clause(parsed, head)
-        marks += _predicate_marks(sc, head, role, clause, zero=False)
+        marks += predicate_marks(sc, head, role, clause, zero=False)
         out.append(
             Mention(
                 id=f"{sc.prefix}{head}",
@@ -267,16 +265,16 @@ def _noun_like(sc: SegmentSide) -> set[int]:
         t.i
         for t in toks
         if rules.is_person_noun(t.text)
-        and not _is_plural(t)
+        and not is_plural(t)
         and not _noun_modifier(parsed, t, rules)
         and (t.text.lower() not in rules.title_only or _as_title(t, toks))
         and (
             t.upos in ("NOUN", "PROPN")
-            or (t.i > 0 and _article_form(toks[t.i - 1], rules) is not None)
+            or (t.i > 0 and article_form(toks[t.i - 1], rules) is not None)
             or (
                 t.i > 1
                 and toks[t.i - 1].upos == "ADJ"
-                and _article_form(toks[t.i - 2], rules) is not None
+                and article_form(toks[t.i - 2], rules) is not None
             )
         )
     }
@@ -316,15 +314,15 @@ def _role_noun(sc: SegmentSide, t: Token) -> Mention:
             else Rule.MASCULINE_NOUN_FORM
         )
         marks.append(sc.mark(t, gender, EvidenceKind.LEXICAL, W_UNMARKED_NOUN, rule))
-    marks += _honorifics_before(sc, t.i, [t.i])
-    marks += _np_marks(sc, t.i, noun_form=True)
+    marks += honorifics_before(sc, t.i, [t.i])
+    marks += np_marks(sc, t.i, noun_form=True)
     if not any(mk.rule == Rule.DETERMINER_AGREEMENT for mk in marks) and t.i > 0:
         before = toks[t.i - 1]
-        g = _article_form(before, rules)
+        g = article_form(before, rules)
         if g in BINARY:
             marks.append(sc.mark(before, g, EvidenceKind.MORPHOLOGY, W_DETERMINER, Rule.DETERMINER_AGREEMENT))
     role, clause = _role_and_clause(parsed, t.i)
-    marks += _predicate_marks(sc, t.i, role, clause, zero=False)
+    marks += predicate_marks(sc, t.i, role, clause, zero=False)
     if gender == "epicene":
         marks = []  # grammatical gender only: "la persona" may be anyone
     masc_key = counterpart if gender == Gender.FEM else t.text.lower()
@@ -359,7 +357,7 @@ def _demonstrative(sc: SegmentSide, t: Token, speaker: bool) -> Mention:
     role, clause = _role_and_clause(sc.parsed, t.i)
     marks = [sc.mark(t, t.gender, EvidenceKind.PRONOUN, W_PRONOUN if speaker else W_CLITIC,
                      Rule.DEMONSTRATIVE_SPEAKER if speaker else Rule.DEMONSTRATIVE_LATTER)]
-    marks += _predicate_marks(sc, t.i, role, clause, zero=False)
+    marks += predicate_marks(sc, t.i, role, clause, zero=False)
     return Mention(id=f"{sc.prefix}{t.i}", side=sc.side, seg=sc.seg, head=t.i, tokens=(t.i,),
                    kind=MentionKind.PRONOUN, text=t.text, start=t.start, end=t.end, number="sing", person="3",
                    pron_type="personal", role=role, clause=clause, key=t.text.lower(), marks=tuple(marks),
@@ -391,7 +389,7 @@ def _pronoun(sc: SegmentSide, t: Token) -> Mention | None:
     # An agreeing intensifier shows the person's gender even on an ungendered pronoun: "de sí misma",
     # "ella misma", "sé stessa".
     intensifiers = [k for k in parsed.children(t.i) if k.deprel == "amod" and k.upos in ("ADJ", "DET")
-                    and k.gender in BINARY and not _is_plural(k)]
+                    and k.gender in BINARY and not is_plural(k)]
     if form.type == "reflexive" and form.gender is None and not intensifiers:
         return None  # "se", "sí": mostly impersonal or passive markers, and never gendered
     if is_expletive(parsed, t, rules):
@@ -418,7 +416,7 @@ def _pronoun(sc: SegmentSide, t: Token) -> Mention | None:
     if form.type == "possessive":
         clause = _governing_clause(parsed, t.i)
     if form.type == "personal":
-        marks += _predicate_marks(sc, t.i, role, clause, zero=False)
+        marks += predicate_marks(sc, t.i, role, clause, zero=False)
     return Mention(
         id=f"{sc.prefix}{t.i}",
         side=sc.side,
@@ -632,7 +630,7 @@ def _demonstrative_speaker(parsed: ParsedText, t: Token, rules: LanguageRules) -
         t.upos == "PRON"
         and t.feat("PronType") == "Dem"
         and t.gender in BINARY
-        and not _is_plural(t)
+        and not is_plural(t)
         and t.deprel in SUBJECT_RELS
         and not t.is_root
         and parsed.tokens[t.head].lemma.lower() in rules.speech_verbs
@@ -647,7 +645,7 @@ def _latter(parsed: ParsedText, t: Token, rules: LanguageRules) -> bool:
         and t.upos in ("ADJ", "NOUN", "PRON")
         and not t.deprel.startswith(("amod", "det", "nmod", "compound"))
         and t.gender in BINARY
-        and not _is_plural(t)
+        and not is_plural(t)
         and any(k.deprel == "det" and k.i < t.i and k.feat("PronType") == "Dem" for k in parsed.children(t.i))
     )
 
@@ -669,7 +667,7 @@ def _participle_after_clitic(parsed: ParsedText, t: Token) -> Token | None:
     if t.is_root or not t.deprel.startswith("obj") or t.head < t.i:
         return None
     head = parsed.tokens[t.head]
-    if head.participle and head.gender in BINARY and not _is_plural(head):
+    if head.participle and head.gender in BINARY and not is_plural(head):
         return head
     return None
 
@@ -698,16 +696,6 @@ def _gender_doublet(parsed: ParsedText, t: Token, rules: LanguageRules) -> bool:
     return False
 
 
-def _article_form(tok: Token, rules: LanguageRules) -> str | None:
-    """The gender of an article form, unless the tagger shows the word is a bare preposition of the same
-    shape (Portuguese "a": "promovido a presidente"); a preposition fused with an article keeps its gender."""
-    g = rules.article_gender(tok.text)
-    if g is not None and tok.upos == "ADP" and not (tok.feat("AdpType") == "Preppron"
-                                                     or tok.feat("PronType") == "Art"):
-        return None
-    return g
-
-
 def _noun_modifier(parsed: ParsedText, t: Token, rules: LanguageRules) -> bool:
     """A person-noun form used as a modifier of the thing noun right before it, with no determiner of its own:
     French "la ligne directrice", "l'idée maîtresse", Spanish "la idea madre". It agrees with that noun and
@@ -727,7 +715,7 @@ def _noun_modifier(parsed: ParsedText, t: Token, rules: LanguageRules) -> bool:
         before.upos == "NOUN"
         and not rules.is_person_noun(before.text)
         and before.gender == t.gender
-        and not _is_plural(before)
+        and not is_plural(before)
         and not any(k.deprel.startswith("det") for k in parsed.children(t.i))
     )
 
@@ -843,230 +831,6 @@ def _title_noun_gender(form: str, rules: LanguageRules) -> str | None:
     return None
 
 
-def _honorifics_before(sc: SegmentSide, head: int, ids: list[int]) -> list[EvidenceItem]:
-    """Honorifics hanging on a name or person noun (or heading it), as title marks."""
-    parsed, rules = sc.parsed, sc.rules
-    marks = []
-    for c in parsed.children(head):
-        if c.i in ids:
-            continue
-        g = rules.honorific(c.text)
-        if g and c.deprel in ("compound", "flat", "flat:name", "appos", "nmod", "det", "amod") and c.i < head:
-            marks.append(sc.mark(c, g, EvidenceKind.TITLE, W_TITLE, Rule.HONORIFIC))
-    # "el señor García": the honorific may be the head with the name under it.
-    # Not across a coordination ("el señor Ruiz y la jefa Ana Gil": señor is not Ana Gil's title).
-    h = parsed.head_of(head)
-    if h is not None and h.i < head and rules.honorific(h.text) and parsed.tokens[head].deprel in (
-        "flat", "flat:name", "appos", "compound", "nmod", "nmod:appos"
-    ):
-        marks.append(sc.mark(h, rules.honorific(h.text), EvidenceKind.TITLE, W_TITLE, Rule.HONORIFIC))
-    return marks
-
-
-def _np_marks(sc: SegmentSide, head: int, noun_form: bool) -> list[EvidenceItem]:
-    """Determiners and adjectives inside the noun phrase that agree with a person noun or name."""
-    parsed, rules = sc.parsed, sc.rules
-    if not rules.dependents:
-        return []
-    marks = []
-    for c in parsed.children(head):
-        if c.deprel == "case" and c.i < head and not _is_plural(c) and rules.article_gender(c.text):
-            # A preposition fused with the article ("del propio director", "au directeur") carries its gender;
-            # a bare preposition of the same form (Portuguese "a") does not (see _article_form).
-            g = _article_form(c, rules)
-            if g in BINARY and c.upos == "ADP":
-                marks.append(sc.mark(c, g,
-                                   EvidenceKind.MORPHOLOGY, W_DETERMINER, Rule.DETERMINER_AGREEMENT))
-            continue
-        if c.deprel not in rules.dependents or _is_plural(c):
-            continue
-        if c.feat("Poss") == "Yes" or rules.pronoun(c.text) and c.upos == "PRON":
-            continue  # possessives agree with the possessed noun, not with the person (rules: possessed)
-        if c.deprel.startswith("det"):
-            g = rules.article_gender(c.text)
-            if g is None and c.upos == "DET":
-                g = c.gender  # any determiner agrees with its noun: articles, demonstratives, "propio", "otro"
-            if g in BINARY and c.i < head:
-                marks.append(
-                    sc.mark(c, g, EvidenceKind.MORPHOLOGY, W_DETERMINER, Rule.DETERMINER_AGREEMENT)
-                )
-        elif c.upos in ("ADJ", "VERB") and c.gender in BINARY:
-            lo, hi = sorted((c.i, head))
-            if any(parsed.tokens[j].upos in ("NOUN", "PROPN") for j in range(lo + 1, hi)):
-                continue  # a noun in between: the adjective more likely goes with that noun
-            if c.gender == Gender.MASC and not noun_form:
-                continue  # an adjective on a bare name: too often an unrelated modifier
-            marks.append(
-                sc.mark(c, c.gender, EvidenceKind.AGREEMENT, W_ADJECTIVE, Rule.ADJECTIVE_AGREEMENT)
-            )
-    return marks
-
-
-def _partitive_gender(parsed, pred: Token, rules) -> str | None:
-    """The gender of a partitive predicate's head: a gendered article form ("una", "l'une"), or an indefinite
-    pronoun the tagger genders with a plural group under it (Spanish "uno de mis amigos": not an article)."""
-    g = rules.article_gender(pred.text)
-    if g is None and pred.upos == "PRON" and pred.feat("PronType") == "Ind" and any(
-        c.deprel.startswith(("nmod", "obl")) and _is_plural(c) for c in parsed.children(pred.i)
-    ):
-        g = pred.gender
-    return g if g in BINARY else None
-
-
-@dataclass
-class _PredicateMarks:
-    """The agreement marks the predicates of one clause put on its subject, gathered by the functions below."""
-
-    sc: SegmentSide
-    zero: bool  # the subject is a zero subject: its masculine agreement counts for less
-    pred: Token  # the clause head
-    kids: list[Token]
-    marks: list[EvidenceItem] = field(default_factory=list)
-
-    @property
-    def has_cop(self) -> bool:
-        return any(k.deprel == "cop" for k in self.kids)
-
-    def add(self, tok: Token, rule: str) -> None:
-        """A mark on `tok` where its form agrees in gender and is singular (a person noun by its own gender)."""
-        rules = self.sc.rules
-        if not tok.text[:1].isalpha():
-            return  # a misparse made punctuation the predicate
-        g = tok.gender
-        if tok.upos in ("ADJ", "VERB") and rules.endings:
-            matched, by_ending = rules.ending_gender(tok.text)
-            if matched:
-                g = by_ending
-        if g not in BINARY or _is_plural(tok):
-            return
-        if tok.upos in ("NOUN", "PROPN"):
-            if not rules.is_person_noun(tok.text):
-                return  # "es un problema": a thing's grammatical gender
-            ng = rules.noun_counterpart(tok.text)[0]
-            if ng not in BINARY:
-                return
-            g = ng
-            if g == Gender.MASC and tok.text.lower() in rules.generic_masculine:
-                self.marks.append(
-                    self.sc.mark(tok, g, EvidenceKind.LEXICAL, W_UNMARKED_NOUN, Rule.GENERIC_MASCULINE_NOUN)
-                )
-                return
-        weight = W_ZERO_MASC_PREDICATE if self.zero and g == Gender.MASC else W_PREDICATE
-        self.marks.append(self.sc.mark(tok, g, EvidenceKind.AGREEMENT, weight, rule))
-
-
-def _predicate_marks(sc: SegmentSide, i: int, role: str, clause: int, zero: bool) -> list[EvidenceItem]:
-    """Predicative adjectives, nouns and participles that agree with the subject of their clause."""
-    rules = sc.rules
-    if role not in SUBJECT_RELS and not zero:
-        return []
-    if not rules.copulas and not rules.agreeing_aux:
-        return []
-    if clause < 0 or clause == i:
-        return []
-    pm = _PredicateMarks(sc, zero, sc.parsed.tokens[clause], sc.parsed.children(clause))
-    for gather in (_main_predicate, _participle_copula, _coordinated_predicates, _secondary_predicates,
-                   _controlled_participles):
-        gather(pm)
-    return pm.marks
-
-
-def _main_predicate(pm: _PredicateMarks) -> None:
-    """The clause head: with a copula, or a participle under an agreeing or passive auxiliary."""
-    parsed, rules, pred, kids = pm.sc.parsed, pm.sc.rules, pm.pred, pm.kids
-    aux_lemmas = {k.lemma.lower() for k in kids if k.deprel in ("aux", "aux:pass", "aux:tense", "cop")}
-    has_cop = pm.has_cop
-    has_pass = any(k.deprel == "aux:pass" for k in kids)
-    if has_cop and pred.upos in ("ADJ", "NOUN", "VERB"):
-        pm.add(pred, Rule.PREDICATIVE_WITH_COPULA)
-    elif has_cop and pred.upos in ("PRON", "NUM", "DET") and (g := _partitive_gender(parsed, pred, rules)):
-        # Partitive predicates agree with the subject: "es una de las pocas pilotos", "l'une des rares",
-        # "es uno de mis amigos".
-        pm.marks.append(pm.sc.mark(pred, g, EvidenceKind.AGREEMENT, W_PREDICATE, Rule.PREDICATIVE_WITH_COPULA))
-    elif pred.upos in ("VERB", "ADJ") and pred.participle:
-        # An agreeing auxiliary makes the participle agree even under a compound tense ("ha sido elegida",
-        # "a été élue"); with only the compound-tense auxiliary it is invariable ("ha operado", "a opéré").
-        if has_pass or aux_lemmas & rules.agreeing_aux:
-            pm.add(pred, Rule.PARTICIPLE_WITH_AGREEING_AUX)
-
-
-def _participle_copula(pm: _PredicateMarks) -> None:
-    """A copula that is itself a participle, under an auxiliary that makes participles agree."""
-    rules, kids = pm.sc.rules, pm.kids
-    has_cop = pm.has_cop
-    # A copula that is itself a participle agrees where its auxiliary makes participles agree: Italian "è
-    # stata gentile" (essere takes essere: the participle agrees with the subject), not Spanish "ha sido".
-    if has_cop:
-        for k in kids:
-            if (
-                k.deprel == "cop"
-                and k.participle
-                and any(a.deprel in ("aux", "aux:pass") and a.lemma.lower() in rules.agreeing_aux
-                        for a in kids)
-            ):
-                pm.add(k, Rule.PARTICIPLE_WITH_AGREEING_AUX)
-
-
-def _coordinated_predicates(pm: _PredicateMarks) -> None:
-    """Predicates coordinated with one already marked."""
-    pred, kids = pm.pred, pm.kids
-    # Coordinated predicates agree with the same subject ("cansada pero muy satisfecha").
-    if pm.marks and pred.upos in ("ADJ", "VERB"):
-        for k in kids:
-            if (
-                k.deprel == "conj"
-                and k.upos in ("ADJ", "VERB")
-                and (k.upos == "ADJ" or k.participle)
-            ):
-                pm.add(k, Rule.PREDICATIVE_WITH_COPULA)
-
-
-def _secondary_predicates(pm: _PredicateMarks) -> None:
-    """Adjectives hanging on the verb itself that describe its subject."""
-    parsed, rules, pred, kids = pm.sc.parsed, pm.sc.rules, pm.pred, pm.kids
-    # Secondary predicates ("quedó sorprendida", "se mostró convencida", "declaró emocionada"): an adjective
-    # hanging on the verb itself describes the subject, unless the verb has a nominal object it could describe.
-    if pred.lemma.lower() in rules.copulas:
-        for k in kids:
-            if (
-                k.deprel == "xcomp"
-                and k.upos in ("ADJ", "VERB")
-                and (k.upos == "ADJ" or k.participle)
-            ):
-                pm.add(k, Rule.SECONDARY_PREDICATE)
-    elif pred.upos == "VERB" and not any(
-        k.deprel in ("obj", "iobj") and k.upos in ("NOUN", "PROPN", "PRON") for k in kids
-    ):
-        for k in kids:
-            if (
-                k.upos == "ADJ"
-                and k.deprel in ("xcomp", "advcl", "obj", "conj", "dep", "obl")
-                and not rules.is_person_noun(k.text)
-                # An adjective with its own determiner is a noun; with its own subject or copula it heads a
-                # clause of its own ("« Je suis désolé », dit-elle").
-                and not any(d.deprel == "det" or d.deprel == "cop" or d.deprel.startswith("nsubj")
-                            for d in parsed.children(k.i))
-            ):
-                pm.add(k, Rule.SECONDARY_PREDICATE)
-
-
-def _controlled_participles(pm: _PredicateMarks) -> None:
-    """Participles of subjectless non-finite clauses under an agreeing auxiliary, controlled by the subject."""
-    parsed, rules, kids = pm.sc.parsed, pm.sc.rules, pm.kids
-    # A participle heading a non-finite adjunct or complement with no subject of its own, under an agreeing
-    # auxiliary, agrees with the subject that controls it ("dopo essersi offerto", "après être arrivée", "tras
-    # ser elegida").
-    for k in kids:
-        if k.deprel not in ("advcl", "xcomp") or not k.participle:
-            continue
-        own = parsed.children(k.i)
-        auxes = [d for d in own if d.deprel in ("aux", "aux:pass", "aux:tense")]
-        if (auxes and not any(d.finite for d in auxes)
-                and any(d.lemma.lower() in rules.agreeing_aux for d in auxes)
-                and not any(d.deprel.startswith("nsubj") for d in own)):
-            pm.add(k, Rule.CONTROLLED_CLAUSE_PARTICIPLE)
-
-
 def _zero_subjects(sc: SegmentSide) -> list[Mention]:
     """Finite 3rd-person singular clauses with no overt subject (pro-drop languages), and 1st-person singular
     ones inside quotations (the speaker: "«Estoy cansada», dijo")."""
@@ -1098,7 +862,7 @@ def _zero_subjects(sc: SegmentSide) -> list[Mention]:
             continue  # existential "hay", weather "hace frío": no subject at all
         if any(k.text.lower() == "se" and k.deprel != "obj" for k in kids):
             continue  # impersonal or passive "se": the clause has no person subject
-        marks = _predicate_marks(sc, -1, "nsubj", t.i, zero=True)
+        marks = predicate_marks(sc, -1, "nsubj", t.i, zero=True)
         out.append(
             Mention(
                 id=f"{sc.prefix}z{t.i}",
