@@ -5,15 +5,12 @@ kind of mark (rules/scoring/weights.yaml, section "evidence")."""
 from __future__ import annotations
 
 from dataclasses import dataclass, field
-from typing import TYPE_CHECKING
 
+from gendertrace.mentions.segment import SegmentSide
 from gendertrace.model import EvidenceItem, Token
 from gendertrace.rules import LanguageRules
 from gendertrace.settings import WEIGHTS
 from gendertrace.vocab import BINARY, SUBJECT_RELS, EvidenceKind, Gender, Rule
-
-if TYPE_CHECKING:
-    from gendertrace.mentions.extract import SegmentSide
 
 # Weights of the kinds of marks: rules/scoring/weights.yaml, section "evidence".
 W_PRONOUN = WEIGHTS.evidence.pronoun

@@ -9,8 +9,7 @@ adjective or participle agreeing with the subject, an honorific.
 from __future__ import annotations
 
 from collections.abc import Callable, Iterable
-from dataclasses import dataclass, field, replace
-from functools import cached_property
+from dataclasses import replace
 
 from gendertrace.mentions.agreement import (
     W_ADJECTIVE,
@@ -26,7 +25,8 @@ from gendertrace.mentions.agreement import (
     np_marks,
     predicate_marks,
 )
-from gendertrace.model import EvidenceItem, Mention, ParsedText, Side, Token
+from gendertrace.mentions.segment import SegmentSide
+from gendertrace.model import Mention, ParsedText, Side, Token
 from gendertrace.rules import LanguageRules
 from gendertrace.rules.loader import pronoun_key
 from gendertrace.vocab import (
@@ -43,33 +43,6 @@ from gendertrace.vocab import (
     NeutralRule,
     Rule,
 )
-
-
-def _mark(
-    side: Side,
-    seg: int,
-    seg_id: str,
-    tok: Token | list[Token],
-    gender: str,
-    kind: str,
-    weight: float,
-    rule: str,
-) -> EvidenceItem:
-    toks = tok if isinstance(tok, list) else [tok]
-    start, end = toks[0].start, toks[-1].end
-    return EvidenceItem(
-        side=side,
-        seg=seg,
-        seg_id=seg_id,
-        start=start,
-        end=end,
-        text=" ".join(t.text for t in toks),
-        gender=gender,
-        kind=kind,
-        weight=weight,
-        rule=rule,
-        tokens=tuple(t.i for t in toks),
-    )
 
 
 def _name_spans(parsed: ParsedText, known_names: set[str],
@@ -150,39 +123,6 @@ def name_key(text: str) -> str:
     return " ".join(text.lower().replace("\u2019", "'").split())
 
 
-@dataclass
-class SegmentSide:
-    """One segment side being read for mentions: its parse, where it stands, its language's rules, the person
-    names known from the other side, the quoted words, and the words a mention has already taken."""
-
-    parsed: ParsedText
-    seg: int
-    seg_id: str
-    side: Side
-    rules: LanguageRules
-    known: set[str] = field(default_factory=set)
-    quoted: set[int] = field(default_factory=set)
-    claimed: set[int] = field(default_factory=set)
-
-    @property
-    def toks(self) -> tuple[Token, ...]:
-        return self.parsed.tokens
-
-    @property
-    def prefix(self) -> str:
-        """Mention ids are the side's initial, the segment index and the head token: "s0.4", "t2.z7"."""
-        return f"{self.side[0]}{self.seg}."
-
-    @cached_property
-    def noun_like(self) -> set[int]:
-        """Person nouns, also where the tagger took them for something else ("la ingeniera" as a verb) but an
-        article stands before them."""
-        return _noun_like(self)
-
-    def mark(self, tok: Token | list[Token], gender: str, kind: str, weight: float, rule: str) -> EvidenceItem:
-        return _mark(self.side, self.seg, self.seg_id, tok, gender, kind, weight, rule)
-
-
 def extract_mentions(
     parsed: ParsedText,
     seg: int,
@@ -193,6 +133,7 @@ def extract_mentions(
 ) -> list[Mention]:
     """All person mentions of one segment side, in text order, with their gender marks."""
     sc = SegmentSide(parsed, seg, seg_id, side, rules, {name_key(n) for n in known_names}, _quoted_tokens(parsed))
+    sc.noun_like = _noun_like(sc)
     out: list[Mention] = []
     for extractor in EXTRACTORS:
         out += extractor(sc)
