@@ -26,7 +26,7 @@ pytestmark = pytest.mark.slow
 
 HEADER = ("doc_id", "seg_id", "source", "target")
 
-# Three documents, deliberately not in alphabetical order. "zeta" is the worked example of DESIGN.md
+# Three documents, deliberately not in alphabetical order. "zeta" is the worked example of docs/design.md
 # (one contradiction); "alpha" agrees with its source; "mid" commits where the source is silent.
 ROWS = [
     ("zeta", "1", "La piloto Amaia Zubelzu aterrizó en Orbeta.", "Pilot Amaia Zubelzu landed in Orbeta."),
@@ -40,7 +40,7 @@ ROWS = [
 DOC_ORDER = ["zeta", "alpha", "mid"]
 LANGS = ["--src-lang", "es", "--tgt-lang", "en"]
 
-# Contract keys (DESIGN.md, "Contracts that other tools rely on").
+# Contract keys (docs/design.md, "Contracts that other tools rely on").
 DOC_KEYS = {"doc_id", "src_lang", "tgt_lang", "entities", "findings", "stats"}
 FINDING_KEYS = {
     "kind", "seg_id", "start", "end", "text", "expected", "found", "entity", "confidence", "evidence",

@@ -15,8 +15,8 @@ from dataclasses import replace
 import pytest
 
 from gendertrace.mentions.extract import extract_mentions
+from gendertrace.mentions.names import shared_unlabelled_names as _shared_unlabelled_names
 from gendertrace.parse.base import get_parser
-from gendertrace.pipeline import _shared_unlabelled_names
 from gendertrace.rules import load_rules
 from scoring_helpers import conllu_parsed, conllu_rows
 

@@ -70,7 +70,7 @@ def _changed(**edits) -> dict:
 
 
 def test_the_rules_folder_has_the_default_languages():
-    # DESIGN.md: directions es->en, fr->en, en->es, en->fr and es<->fr must work with the default install.
+    # docs/design.md: directions es->en, fr->en, en->es, en->fr and es<->fr must work with the default install.
     assert {"en", "es", "fr"} <= set(LANGS)
 
 

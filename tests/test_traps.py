@@ -1,4 +1,4 @@
-"""The known traps of DESIGN.md, one behaviour per test, through the real spaCy pipelines.
+"""The known traps of docs/design.md, one behaviour per test, through the real spaCy pipelines.
 
 Each test either reads the mentions that `extract_mentions` finds on a real parse, or scores a small
 document with `Scorer(src, tgt).score(...)` and reads its findings, entities and chains. Sentences, people
@@ -105,7 +105,7 @@ def _chain_with(result: DocumentResult, side: str, text: str) -> Chain:
 
 def test_spanish_participle_after_haber_is_no_evidence_about_the_subject(mentions):
     parsed, ms = mentions("es", "La cirujana ha operado al paciente.")
-    # The trap (DESIGN.md): the pipeline tags the invariable participle Masc.
+    # The trap (docs/design.md): the pipeline tags the invariable participle Masc.
     assert _tok(parsed, "operado").gender == "masc"
     # Spanish grammar: the past participle of a compound tense with haber does not agree (from memory).
     assert "operado" not in _all_mark_texts(ms)
@@ -298,7 +298,7 @@ def test_english_common_gender_noun_is_no_evidence(mentions):
 
 
 # --------------------------------------------------------------------------------------------------
-# The worked example of DESIGN.md, and the same path backwards
+# The worked example of docs/design.md, and the same path backwards
 
 WORKED_EXAMPLE = [
     ("La piloto Amaia Zubelzu aterrizó en Orbeta.", "Pilot Amaia Zubelzu landed in Orbeta."),
@@ -307,7 +307,7 @@ WORKED_EXAMPLE = [
 
 
 def test_worked_example_gives_exactly_one_contradiction_on_he(score):
-    # Expected values as DESIGN.md states them for its worked example.
+    # Expected values as docs/design.md states them for its worked example.
     result = score("es", "en", WORKED_EXAMPLE)
     assert len(result.findings) == 1
     f = result.findings[0]

@@ -112,7 +112,17 @@ def _policy(policy_file, neutral_for_binary, assumption_kinds):
     return policy
 
 
-@click.group(context_settings={"help_option_names": ["-h", "--help"]})
+class _Commands(click.Group):
+    """Any GendertraceError a command lets through (a bad rules or weights file read on first use) is one line."""
+
+    def invoke(self, ctx):
+        try:
+            return super().invoke(ctx)
+        except GendertraceError as exc:
+            _fail(exc)
+
+
+@click.group(cls=_Commands, context_settings={"help_option_names": ["-h", "--help"]})
 @click.version_option(__version__, prog_name="gendertrace")
 def main() -> None:
     """Check machine-translated documents for gender consistency.

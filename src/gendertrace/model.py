@@ -9,13 +9,10 @@ from collections.abc import Mapping
 from dataclasses import dataclass, field
 from typing import Literal
 
-Gender = Literal["fem", "masc", "neutral"]
-Side = Literal["source", "target"]
-GENDERS: tuple[str, ...] = ("fem", "masc", "neutral")
-FINDING_KINDS: tuple[str, ...] = ("contradiction", "inconsistency", "assumption")
+# The vocabularies live in gendertrace.vocab; these names stay importable from here.
+from gendertrace.vocab import FINDING_KINDS, GENDERS, UD_GENDER, Gender, MentionKind  # noqa: F401
 
-# UD's Gender values mapped onto the project's vocabulary (UD guidelines, "Gender" feature page).
-UD_GENDER = {"Fem": "fem", "Masc": "masc", "Neut": "neutral"}
+Side = Literal["source", "target"]
 
 
 # ---------------------------------------------------------------------------------------------------------------
@@ -146,6 +143,19 @@ class ParsedDocument:
 # Mentions, evidence, chains
 
 
+@dataclass(frozen=True, order=True)
+class Span:
+    """Characters [start, end) of one segment side: where a mention, an evidence item or a finding stands."""
+
+    side: Side
+    seg: int  # segment index in the document
+    start: int
+    end: int
+
+    def overlaps(self, other: Span) -> bool:
+        return (self.side, self.seg) == (other.side, other.seg) and self.start < other.end and other.start < self.end
+
+
 @dataclass(frozen=True)
 class EvidenceItem:
     """A located word (or words) that marks a gender on a mention, and how much it counts.
@@ -167,6 +177,10 @@ class EvidenceItem:
     rule: str  # which rule produced it, for explanations
     tokens: tuple[int, ...] = ()
 
+    @property
+    def span(self) -> Span:
+        return Span(self.side, self.seg, self.start, self.end)
+
     def to_json(self) -> dict:
         return {
             "side": self.side,
@@ -179,9 +193,6 @@ class EvidenceItem:
             "weight": round(self.weight, 3),
             "rule": self.rule,
         }
-
-
-MentionKind = Literal["name", "noun", "pronoun", "zero"]
 
 
 @dataclass(frozen=True)
@@ -212,6 +223,16 @@ class Mention:
     animate: bool = True  # False for pronouns that can also stand for things (it, lo, la)
     case: str | None = None  # pronouns: nom, acc, dat (from the rules), else None
     quoted: bool = False  # inside quotation marks
+    # Set by coreference (coref.sieves): the chain, the mention a pronoun or zero subject was resolved to, and
+    # how certain that attachment is (1.0 unless a choice was made); possessives read by their own form.
+    chain: str = ""
+    antecedent: str = ""
+    certainty: float = 1.0
+    read_by_form: bool = False
+
+    @property
+    def span(self) -> Span:
+        return Span(self.side, self.seg, self.start, self.end)
 
     @property
     def gender(self) -> str | None:
@@ -296,6 +317,12 @@ class Finding:
     evidence: tuple[EvidenceItem, ...]
     message: str = ""
     seg: int = 0
+    mention: str = ""  # the target mention the word belongs to: its link is DocumentResult.links[mention]
+
+    @property
+    def span(self) -> Span:
+        """Findings are about target words."""
+        return Span("target", self.seg, self.start, self.end)
 
     def to_json(self) -> dict:
         return {
@@ -345,6 +372,8 @@ class DocumentResult:
     stats: DocumentStats
     chains: tuple[Chain, ...] = ()
     skipped: str = ""  # why the document was not scored, when it was not
+    # Target mention id -> its link to a source chain (method, confidence, the source mention it goes through).
+    links: Mapping[str, Link] = field(default_factory=dict, compare=False)
 
     def to_json(self) -> dict:
         out = {

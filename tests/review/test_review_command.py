@@ -89,7 +89,7 @@ def test_tmx_input_grouped_by_its_document_property(tmp_path):
     assert re.search(r'data-finding-id="f1-1"[^>]*>He<span class="ftag"', report.read_text(encoding="utf-8"))
 
 
-# The worked example of DESIGN.md as an XLIFF 1.2 file: the source's feminine agreement ("cansada") against
+# The worked example of docs/design.md as an XLIFF 1.2 file: the source's feminine agreement ("cansada") against
 # the target's "He". Names and places are invented.
 WORKED = """<?xml version="1.0" encoding="UTF-8"?>
 <xliff version="1.2" xmlns="urn:oasis:names:tc:xliff:document:1.2">

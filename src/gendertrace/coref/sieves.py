@@ -9,27 +9,37 @@ pronoun still joins its entity instead of starting a new one.
 
 from __future__ import annotations
 
-from collections.abc import Sequence
-from dataclasses import dataclass, field
+from collections.abc import Callable, Sequence
+from dataclasses import dataclass, field, replace
 
 from gendertrace.model import Chain, Mention, ParsedText, Side
+from gendertrace.settings import WEIGHTS
+from gendertrace.vocab import (
+    BINARY,
+    NOMINAL_KINDS,
+    OBJECT_RELS,
+    RELATIVE_CLAUSE_RELS,
+    SUBJECT_RELS,
+    Gender,
+    MentionKind,
+)
 
-# How far back (in segments) a pronoun or zero subject looks for its antecedent.
-PRONOUN_WINDOW = 3
-# Certainty of a pronoun's attachment by distance in segments (same, previous, two back, three back).
-DISTANCE_CERTAINTY = (1.0, 0.9, 0.8, 0.7)
-# Certainty when another compatible antecedent was nearly as salient.
-ALTERNATIVE_CERTAINTY = 0.7
-# Certainty of a pronoun that also stands for things where a thing of its gender was a subject just before:
-# as likely the thing as the person.
-THING_CERTAINTY = 0.5
-# A competitor within this much salience counts as an alternative (less than the bonus for being a subject).
-ALTERNATIVE_MARGIN = 0.5
+# Window, certainties and margin: rules/scoring/weights.yaml, section "coreference" (salience: "salience").
+PRONOUN_WINDOW = WEIGHTS.coreference.pronoun_window
+DISTANCE_CERTAINTY = WEIGHTS.coreference.distance_certainty
+ALTERNATIVE_CERTAINTY = WEIGHTS.coreference.alternative_certainty
+THING_CERTAINTY = WEIGHTS.coreference.thing_certainty
+ALTERNATIVE_MARGIN = WEIGHTS.coreference.alternative_margin
+SALIENCE = WEIGHTS.salience
 
 
 @dataclass
 class Resolution:
-    """The chains of one side plus, per mention, how certain its attachment is (1.0 unless a choice was made)."""
+    """The chains of one side. Each chain's mentions carry their attachment: `chain`, `antecedent` (the mention
+    a pronoun or zero subject was resolved to) and `certainty` (1.0 unless a choice was made).
+
+    The tables keyed by mention id are views of those attributes, kept for callers that look mentions up by id.
+    """
 
     chains: list[Chain]
     chain_of: dict[str, str]
@@ -41,9 +51,16 @@ class Resolution:
 
 
 class _Clusters:
+    """Union-find over mention ids that keeps each cluster's members and their numbers and genders, so that
+    asking for them costs the cluster's size (or nothing), never the document's."""
+
     def __init__(self, mentions: Sequence[Mention]) -> None:
         self.parent = {m.id: m.id for m in mentions}
         self.by_id = {m.id: m for m in mentions}
+        self._members = {m.id: [m] for m in mentions}
+        self._numbers = {m.id: {m.number} - {None} for m in mentions}
+        self._genders = {m.id: _genders([m]) for m in mentions}
+        self._name_words = {m.id: set(m.key.split()) if m.kind == MentionKind.NAME else set() for m in mentions}
 
     def find(self, x: str) -> str:
         while self.parent[x] != x:
@@ -52,8 +69,19 @@ class _Clusters:
         return x
 
     def members(self, x: str) -> list[Mention]:
-        r = self.find(x)
-        return [m for k, m in self.by_id.items() if self.find(k) == r]
+        """The mentions of x's cluster (in no particular order)."""
+        return self._members[self.find(x)]
+
+    def numbers(self, x: str) -> set[str]:
+        return self._numbers[self.find(x)]
+
+    def genders(self, x: str) -> set[str]:
+        """The binary genders the cluster's marks show."""
+        return self._genders[self.find(x)]
+
+    def name_words(self, x: str) -> set[str]:
+        """The words of the cluster's names."""
+        return self._name_words[self.find(x)]
 
     def union(self, a: str, b: str) -> None:
         ra, rb = self.find(a), self.find(b)
@@ -61,6 +89,10 @@ class _Clusters:
             # Keep the earlier mention as representative so chain ids follow text order.
             first, second = sorted((ra, rb), key=lambda k: _order(self.by_id[k]))
             self.parent[second] = first
+            self._members[first] = self._members[first] + self._members.pop(second)
+            self._numbers[first] = self._numbers[first] | self._numbers.pop(second)
+            self._genders[first] = self._genders[first] | self._genders.pop(second)
+            self._name_words[first] = self._name_words[first] | self._name_words.pop(second)
 
 
 def _order(m: Mention) -> tuple[int, int]:
@@ -68,20 +100,304 @@ def _order(m: Mention) -> tuple[int, int]:
 
 
 def _genders(ms: Sequence[Mention]) -> set[str]:
-    return {mk.gender for m in ms for mk in m.marks if mk.gender in ("fem", "masc")}
+    return {mk.gender for m in ms for mk in m.marks if mk.gender in BINARY}
 
 
-def _compatible(a: Sequence[Mention], b: Sequence[Mention], use_gender: bool) -> bool:
+def _compatible_sets(na: set, nb: set, ga: set, gb: set, use_gender: bool) -> bool:
     """Number always; gender only when switched on, and only where both clusters show one."""
-    na = {m.number for m in a if m.number}
-    nb = {m.number for m in b if m.number}
     if na and nb and not (na & nb):
         return False
-    if use_gender:
-        ga, gb = _genders(a), _genders(b)
-        if len(ga) == 1 and len(gb) == 1 and ga != gb:
-            return False
+    if use_gender and len(ga) == 1 and len(gb) == 1 and ga != gb:
+        return False
     return True
+
+
+@dataclass
+class CorefState:
+    """What the sieves of one side share: the mentions in text order, indexed by segment and by token, the
+    clusters, and the attachments made so far."""
+
+    mentions: list[Mention]
+    parses: Sequence[ParsedText]
+    use_gender: bool
+    role_markers: frozenset[str]
+    thing_pronouns: frozenset[str]
+    clusters: _Clusters
+    apart: dict[str, set[str]]  # mention id -> ids it can never share a chain with
+    by_seg: dict[int, list[Mention]]
+    by_token: dict[tuple[int, int], Mention]  # (segment, token) -> the overt mention there
+    mention_tokens: set[tuple[int, int]]  # words that are some person's mention
+    certainty: dict[str, float] = field(default_factory=dict)
+    antecedent: dict[str, str] = field(default_factory=dict)
+    read_by_form: set[str] = field(default_factory=set)
+
+    @classmethod
+    def build(cls, mentions: Sequence[Mention], parses: Sequence[ParsedText], use_gender: bool,
+              role_markers: frozenset[str], thing_pronouns: frozenset[str]) -> CorefState:
+        ms = sorted(mentions, key=_order)
+        apart: dict[str, set[str]] = {}
+        for pair in _contained_pairs(ms, parses) | _disjoint_arguments(ms, parses):
+            x, y = tuple(pair)
+            apart.setdefault(x, set()).add(y)
+            apart.setdefault(y, set()).add(x)
+        by_seg: dict[int, list[Mention]] = {}
+        by_token: dict[tuple[int, int], Mention] = {}
+        for m in ms:
+            by_seg.setdefault(m.seg, []).append(m)
+            if m.kind != MentionKind.ZERO:
+                for t in m.tokens:
+                    by_token[(m.seg, t)] = m
+        return cls(ms, parses, use_gender, role_markers, thing_pronouns, _Clusters(ms), apart, by_seg, by_token,
+                   {(x.seg, t) for x in ms for t in x.tokens})
+
+    def of_kind(self, kind: str) -> list[Mention]:
+        return [m for m in self.mentions if m.kind == kind]
+
+    def in_segment(self, seg: int) -> list[Mention]:
+        return self.by_seg.get(seg, [])
+
+    def window(self, m: Mention) -> list[Mention]:
+        """The mentions of the segments a pronoun or zero subject may look back to, its own included."""
+        return [c for seg in range(max(m.seg - PRONOUN_WINDOW, 0), m.seg + 1) for c in self.by_seg.get(seg, ())]
+
+    def join(self, a: Mention, b: Mention) -> bool:
+        """Put a and b in one chain unless a binding constraint keeps two of their mentions apart or the
+        chains disagree in number (or, where switched on, in gender). Returns whether it did."""
+        cl = self.clusters
+        ra, rb = cl.find(a.id), cl.find(b.id)
+        if ra == rb:
+            return True
+        if self.apart:
+            small, other = (ra, rb) if len(cl.members(ra)) <= len(cl.members(rb)) else (rb, ra)
+            if any(cl.find(y) == other for x in cl.members(small) for y in self.apart.get(x.id, ())):
+                return False
+        if _compatible_sets(cl.numbers(ra), cl.numbers(rb), cl.genders(ra), cl.genders(rb), self.use_gender):
+            cl.union(a.id, b.id)
+            return True
+        return False
+
+    def attach(self, m: Mention, antecedent: Mention, certainty: float | None = None) -> None:
+        self.antecedent[m.id] = antecedent.id
+        if certainty is not None:
+            self.certainty[m.id] = certainty
+
+
+# ---------------------------------------------------------------------------------------------------------------
+# The sieves, most precise first. Each reads and extends the state's clusters; a new sieve is one function here
+# and one line in SIEVES.
+
+
+def exact_names(st: CorefState) -> None:
+    """Two names with the same normalised form."""
+    names = st.of_kind(MentionKind.NAME)
+    later: dict[str, list[Mention]] = {}
+    for b in reversed(names):
+        later.setdefault(b.key, []).insert(0, b)
+    for a in names:
+        same = later[a.key]
+        same.pop(0)  # a itself: what is left are the names after it
+        for b in same:
+            st.join(a, b)
+
+
+def structure(st: CorefState) -> None:
+    """Inside a segment: apposition, name-internal compounds, titles before names, predicate nominatives,
+    intensifying reflexives and the person noun predicated of a zero subject."""
+    by_seg_head = st.by_token
+    parses = st.parses
+    for m in st.mentions:
+        # "∅ era la responsable": a zero subject and the person noun predicated of it.
+        if m.kind == MentionKind.ZERO:
+            pred = by_seg_head.get((m.seg, m.head))
+            if pred is not None and pred.kind == MentionKind.NOUN:
+                st.join(pred, m)
+            continue
+        # "Wintour herself", "la ministra misma": an intensifying reflexive is the person it follows.
+        held = _intensifier_of(m, parses[m.seg])
+        if held >= 0:
+            other = by_seg_head.get((m.seg, held))
+            if other is not None and other.kind in NOMINAL_KINDS and st.join(other, m):
+                st.attach(m, other)
+            continue
+        if m.kind not in NOMINAL_KINDS:
+            continue
+        tok = parses[m.seg].tokens[m.head]
+        if tok.deprel in ("appos", "compound", "flat", "flat:name", "nmod:appos") and not tok.is_root:
+            other = by_seg_head.get((m.seg, tok.head))
+            if other is None and tok.deprel == "appos":
+                other = _appos_through_modifier(parses[m.seg], tok.head, m.seg, by_seg_head)
+            if other is not None and other.kind in NOMINAL_KINDS and other is not m:
+                st.join(other, m)
+        # A role noun right before a name is its title: "la ingeniera Carmen Ibarluce", "Captain Moira Tennick".
+        if m.kind == MentionKind.NOUN:
+            nxt = by_seg_head.get((m.seg, m.tokens[-1] + 1))
+            if nxt is not None and nxt.kind == MentionKind.NAME:
+                st.join(m, nxt)
+        # "was elected president", "named her director": a person noun predicated of the clause's subject.
+        if m.kind == MentionKind.NOUN and tok.deprel in ("xcomp", "attr") and not tok.is_root:
+            for k in parses[m.seg].children(tok.head):
+                subj = by_seg_head.get((m.seg, k.i))
+                if k.deprel in SUBJECT_RELS and subj is not None and subj.kind in NOMINAL_KINDS:
+                    st.join(subj, m)
+        # "A es ministra" (UD: copular predicate nominal) and "A is the minister" (English: attr of be).
+        if tok.deprel in ("nsubj",):
+            head = parses[m.seg].tokens[tok.head]
+            pred = by_seg_head.get((m.seg, head.i))
+            has_cop = any(k.deprel == "cop" for k in parses[m.seg].children(head.i))
+            if pred is not None and pred is not m and has_cop and pred.kind in NOMINAL_KINDS:
+                st.join(m, pred)
+            if head.lemma.lower() == "be":
+                for k in parses[m.seg].children(head.i):
+                    if k.deprel == "attr" and (m.seg, k.i) in by_seg_head:
+                        st.join(m, by_seg_head[(m.seg, k.i)])
+
+
+def role_markers(st: CorefState) -> None:
+    """"se incorporó como becaria", "joined as a trainee": the role noun is the clause's subject (or object)."""
+    if not st.role_markers:
+        return
+    for m in st.mentions:
+        if m.kind != MentionKind.NOUN:
+            continue
+        parsed = st.parses[m.seg]
+        verb = _role_marked_verb(parsed, m.head, st.role_markers)
+        if verb < 0:
+            continue
+        holder = st.by_token.get((m.seg, verb))
+        if holder is not None and holder.kind in NOMINAL_KINDS and holder is not m:
+            st.join(holder, m)  # "la incorporación de Julián Ferrás como secretario": no verb, a name
+            continue
+        # With an object pronoun the role is predicated of the object ("la describió como una mujer
+        # valiente", "lo nombraron como director"); otherwise of the subject.
+        seg = st.in_segment(m.seg)
+        obj = _clause_object(seg, m, verb)
+        holder = obj if obj is not None and obj.kind == MentionKind.PRONOUN else _clause_subject(seg, m, verb)
+        if holder is None:
+            # A non-finite clause has its subject understood: the object of the verb above where it has
+            # one ("le permite seguir como secretaria": object control), else that verb's subject.
+            above = _nonfinite_under(parsed, verb)
+            if above >= 0:
+                holder = _clause_object(seg, m, above) or _clause_subject(seg, m, above)
+        if holder is not None:
+            st.join(holder, m)
+
+
+def partial_names(st: CorefState) -> None:
+    """One name's words contained in another's ("Zubelzu" in "Amaia Zubelzu"), where the shorter one fits
+    only one person."""
+    names = st.of_kind(MentionKind.NAME)
+    cl = st.clusters
+    words = [set(n.key.split()) for n in names]
+    with_word: dict[str, list[int]] = {}
+    for k, ws in enumerate(words):
+        for w in ws:
+            with_word.setdefault(w, []).append(k)
+    for i, a in enumerate(names):
+        # A name containing or contained in a's shares a word with it: only those can match.
+        for j in sorted({j for w in words[i] for j in with_word[w] if j > i}):
+            b = names[j]
+            if cl.find(a.id) == cl.find(b.id):
+                continue
+            wa, wb = words[i], words[j]
+            if wa <= wb or wb <= wa:
+                shorter = wa if len(wa) <= len(wb) else wb
+                # A lone first name shared by two different full names is not enough.
+                holders = {k for w in shorter for k in with_word[w]}
+                if len({cl.find(names[k].id) for k in holders if shorter < words[k]}) <= 1:
+                    st.join(a, b)
+
+
+def coordinated_subjects(st: CorefState) -> None:
+    """The zero subject of a coordinated verb shares the subject of the first conjunct."""
+    subj_of_clause: dict[tuple[int, int], Mention] = {}
+    for m in st.mentions:
+        if m.role in SUBJECT_RELS and m.clause >= 0 and m.pron_type != "possessive":
+            subj_of_clause.setdefault((m.seg, m.clause), m)
+    for m in st.mentions:
+        if m.kind != MentionKind.ZERO:
+            continue
+        t = st.parses[m.seg].tokens[m.head]
+        if t.deprel == "conj" and (m.seg, t.head) in subj_of_clause:
+            other = subj_of_clause[(m.seg, t.head)]
+            if other is not m and st.join(other, m):
+                st.attach(m, other)
+
+
+def role_noun_heads(st: CorefState) -> None:
+    """The same role noun again ("la ministra ... la ministra"). An indefinite noun phrase introduces a new
+    person rather than taking up one already mentioned ("la mujer ... como un hombre"), so the later mention
+    must not be indefinite."""
+    nouns = st.of_kind(MentionKind.NOUN)
+    cl = st.clusters
+    later: dict[str, list[Mention]] = {}
+    for b in reversed(nouns):
+        later.setdefault(b.key, []).insert(0, b)
+    for a in nouns:
+        same = later[a.key]
+        same.pop(0)
+        for b in same:
+            if (cl.find(a.id) != cl.find(b.id) and not _different_names(cl, a, b)
+                    and not _indefinite(st.parses[b.seg], b.head)):
+                st.join(a, b)
+
+
+def quoted_speakers(st: CorefState) -> None:
+    """A first person inside a quotation is its speaker: the nearest subject outside the quotation in the same
+    segment ("«Estoy cansada», dijo Ana"; "Ana said: 'I am tired'")."""
+    for m in st.mentions:
+        if m.person != "1" or not m.quoted:
+            continue
+        speakers = [
+            c
+            for c in st.in_segment(m.seg)
+            if not c.quoted
+            and c.person != "1"
+            and c.role in SUBJECT_RELS
+            and c.pron_type != "possessive"
+        ]
+        if speakers:
+            best = min(speakers, key=lambda c: abs(c.head - m.head))
+            if st.join(best, m):
+                st.attach(m, best, 1.0 if len(speakers) == 1 else ALTERNATIVE_CERTAINTY)
+
+
+def pronouns(st: CorefState) -> None:
+    """Pronouns and zero subjects, in text order, to the most salient compatible preceding cluster."""
+    for m in st.mentions:
+        if m.kind not in (MentionKind.PRONOUN, MentionKind.ZERO) or m.id in st.antecedent or m.person == "1":
+            continue
+        if not m.animate and m.gender is None:
+            continue  # "it", "its", "ello": a thing, it joins no person
+        best, alternatives, others = _pick_antecedent(m, st)
+        if best is None:
+            continue
+        local = None if st.use_gender else _local_possessor(m, best, others, st.clusters)
+        if local is not None and st.join(local, m):
+            st.read_by_form.add(m.id)
+            st.attach(m, local, ALTERNATIVE_CERTAINTY)  # the salient person was the other choice
+            continue
+        if st.join(best, m):
+            # Another compatible cluster nearly as salient makes the choice uncertain, and so does distance,
+            # and so does a thing the pronoun may stand for.
+            far = min(m.seg - best.seg, len(DISTANCE_CERTAINTY) - 1)
+            sure = ALTERNATIVE_CERTAINTY if alternatives else 1.0
+            if m.key in st.thing_pronouns and _thing_subject_before(m, best, st.mention_tokens, st.parses):
+                sure = min(sure, THING_CERTAINTY)
+            st.attach(m, best, sure * DISTANCE_CERTAINTY[far])
+
+
+Sieve = Callable[[CorefState], None]
+# The order matters: each sieve sees the chains the ones before it built.
+SIEVES: tuple[Sieve, ...] = (
+    exact_names,
+    structure,
+    role_markers,
+    partial_names,
+    coordinated_subjects,
+    role_noun_heads,
+    quoted_speakers,
+    pronouns,
+)
 
 
 def resolve_chains(
@@ -91,216 +407,45 @@ def resolve_chains(
     use_gender: bool,
     role_markers: frozenset[str] = frozenset(),
     thing_pronouns: frozenset[str] = frozenset(),
+    sieves: Sequence[Sieve] = SIEVES,
 ) -> Resolution:
     """Group one side's mentions into chains. `parses` are that side's segments, indexed by Mention.seg.
 
     `role_markers` are the words that introduce a role held by the subject ("como", "as"); `thing_pronouns` the
-    subject pronouns that also stand for things ("il", "elle").
+    subject pronouns that also stand for things ("il", "elle"). The returned chains hold the mentions with
+    their attachment (`chain`, `antecedent`, `certainty`, `read_by_form`) set.
     """
-    ms = sorted(mentions, key=_order)
-    cl = _Clusters(ms)
-    certainty: dict[str, float] = {}
-    antecedent: dict[str, str] = {}
-    read_by_form: set[str] = set()
-    mention_tokens = {(x.seg, t) for x in ms for t in x.tokens}  # words that are some person's mention
+    st = CorefState.build(mentions, parses, use_gender, role_markers, thing_pronouns)
+    for sieve in sieves:
+        sieve(st)
+    return _chains(st, side)
 
-    apart = _contained_pairs(ms, parses) | _disjoint_arguments(ms, parses)
 
-    def try_union(a: Mention, b: Mention) -> bool:
-        ma, mb = cl.members(a.id), cl.members(b.id)
-        if apart and any(frozenset((x.id, y.id)) in apart for x in ma for y in mb):
-            return False
-        if _compatible(ma, mb, use_gender):
-            cl.union(a.id, b.id)
-            return True
-        return False
-
-    names = [m for m in ms if m.kind == "name"]
-    # Pass 1: exact name match.
-    for i, a in enumerate(names):
-        for b in names[i + 1 :]:
-            if a.key == b.key:
-                try_union(a, b)
-
-    # Pass 2: structure inside a segment: apposition, name-internal compounds, predicate nominatives.
-    by_seg_head: dict[tuple[int, int], Mention] = {}
-    for m in ms:
-        if m.kind != "zero":
-            for t in m.tokens:
-                by_seg_head[(m.seg, t)] = m
-    for m in ms:
-        # "∅ era la responsable": a zero subject and the person noun predicated of it.
-        if m.kind == "zero":
-            pred = by_seg_head.get((m.seg, m.head))
-            if pred is not None and pred.kind == "noun":
-                try_union(pred, m)
-            continue
-        # "Wintour herself", "la ministra misma": an intensifying reflexive is the person it follows.
-        held = _intensifier_of(m, parses[m.seg])
-        if held >= 0:
-            other = by_seg_head.get((m.seg, held))
-            if other is not None and other.kind in ("name", "noun") and try_union(other, m):
-                antecedent[m.id] = other.id
-            continue
-        if m.kind not in ("name", "noun"):
-            continue
-        tok = parses[m.seg].tokens[m.head]
-        if tok.deprel in ("appos", "compound", "flat", "flat:name", "nmod:appos") and not tok.is_root:
-            other = by_seg_head.get((m.seg, tok.head))
-            if other is None and tok.deprel == "appos":
-                other = _appos_through_modifier(parses[m.seg], tok.head, m.seg, by_seg_head)
-            if other is not None and other.kind in ("name", "noun") and other is not m:
-                try_union(other, m)
-        # A role noun right before a name is its title: "la ingeniera Carmen Ibarluce", "Captain Moira Tennick".
-        if m.kind == "noun":
-            nxt = by_seg_head.get((m.seg, m.tokens[-1] + 1))
-            if nxt is not None and nxt.kind == "name":
-                try_union(m, nxt)
-        # "was elected president", "named her director": a person noun predicated of the clause's subject.
-        if m.kind == "noun" and tok.deprel in ("xcomp", "attr") and not tok.is_root:
-            for k in parses[m.seg].children(tok.head):
-                subj = by_seg_head.get((m.seg, k.i))
-                if k.deprel in ("nsubj", "nsubj:pass") and subj is not None and subj.kind in ("name", "noun"):
-                    try_union(subj, m)
-        # "A es ministra" (UD: copular predicate nominal) and "A is the minister" (ClearNLP: attr of be).
-        if tok.deprel in ("nsubj",):
-            head = parses[m.seg].tokens[tok.head]
-            pred = by_seg_head.get((m.seg, head.i))
-            has_cop = any(k.deprel == "cop" for k in parses[m.seg].children(head.i))
-            if pred is not None and pred is not m and has_cop and pred.kind in ("name", "noun"):
-                try_union(m, pred)
-            if head.lemma.lower() == "be":
-                for k in parses[m.seg].children(head.i):
-                    if k.deprel == "attr" and (m.seg, k.i) in by_seg_head:
-                        try_union(m, by_seg_head[(m.seg, k.i)])
-
-    # Pass 2b: "se incorporó como becaria", "joined as a trainee": the role noun is the clause's subject.
-    if role_markers:
-        for m in ms:
-            if m.kind != "noun":
-                continue
-            verb = _role_marked_verb(parses[m.seg], m.head, role_markers)
-            if verb < 0:
-                continue
-            holder = by_seg_head.get((m.seg, verb))
-            if holder is not None and holder.kind in ("name", "noun") and holder is not m:
-                try_union(holder, m)  # "la incorporación de Julián Ferrás como secretario": no verb, a name
-                continue
-            # With an object pronoun the role is predicated of the object ("la describió como una mujer
-            # valiente", "lo nombraron como director"); otherwise of the subject.
-            obj = _clause_object(ms, m, verb)
-            holder = obj if obj is not None and obj.kind == "pronoun" else _clause_subject(ms, m, verb)
-            if holder is None:
-                # A non-finite clause has its subject understood: the object of the verb above where it has
-                # one ("le permite seguir como secretaria": object control), else that verb's subject.
-                above = _nonfinite_under(parses[m.seg], verb)
-                if above >= 0:
-                    holder = _clause_object(ms, m, above) or _clause_subject(ms, m, above)
-            if holder is not None:
-                try_union(holder, m)
-
-    # Pass 3: partial name match: one name's words contained in another's ("Zubelzu" in "Amaia Zubelzu").
-    for i, a in enumerate(names):
-        for b in names[i + 1 :]:
-            if cl.find(a.id) == cl.find(b.id):
-                continue
-            wa, wb = set(a.key.split()), set(b.key.split())
-            if wa <= wb or wb <= wa:
-                shorter = wa if len(wa) <= len(wb) else wb
-                # A lone first name shared by two different full names is not enough.
-                if _unique_container(shorter, names, cl):
-                    try_union(a, b)
-
-    # Pass 4: the zero subject of a coordinated verb shares the subject of the first conjunct.
-    subj_of_clause: dict[tuple[int, int], Mention] = {}
-    for m in ms:
-        if m.role in ("nsubj", "nsubj:pass") and m.clause >= 0 and m.pron_type != "possessive":
-            subj_of_clause.setdefault((m.seg, m.clause), m)
-    for m in ms:
-        if m.kind != "zero":
-            continue
-        t = parses[m.seg].tokens[m.head]
-        if t.deprel == "conj" and (m.seg, t.head) in subj_of_clause:
-            other = subj_of_clause[(m.seg, t.head)]
-            if other is not m and try_union(other, m):
-                antecedent[m.id] = other.id
-
-    # Pass 5: role-noun head match ("la ministra ... la ministra"). An indefinite noun phrase introduces a new
-    # person rather than taking up one already mentioned ("la mujer ... como un hombre"), so the later mention
-    # must not be indefinite.
-    nouns = [m for m in ms if m.kind == "noun"]
-    for i, a in enumerate(nouns):
-        for b in nouns[i + 1 :]:
-            if (a.key == b.key and cl.find(a.id) != cl.find(b.id) and not _different_names(cl, a, b)
-                    and not _indefinite(parses[b.seg], b.head)):
-                try_union(a, b)
-
-    # Pass 6a: a first person inside a quotation is its speaker: the nearest subject outside the quotation in
-    # the same segment ("«Estoy cansada», dijo Ana"; "Ana said: 'I am tired'").
-    for m in ms:
-        if m.person != "1" or not m.quoted:
-            continue
-        speakers = [
-            c
-            for c in ms
-            if c.seg == m.seg
-            and not c.quoted
-            and c.person != "1"
-            and c.role in ("nsubj", "nsubj:pass")
-            and c.pron_type != "possessive"
-        ]
-        if speakers:
-            best = min(speakers, key=lambda c: abs(c.head - m.head))
-            if try_union(best, m):
-                antecedent[m.id] = best.id
-                certainty[m.id] = 1.0 if len(speakers) == 1 else ALTERNATIVE_CERTAINTY
-
-    # Pass 6: pronouns and zero subjects, in text order, to the most salient compatible preceding cluster.
-    for m in ms:
-        if m.kind not in ("pronoun", "zero") or m.id in antecedent or m.person == "1":
-            continue
-        if not m.animate and m.gender is None:
-            continue  # "it", "its", "ello": a thing, it joins no person
-        best, alternatives, others = _pick_antecedent(m, ms, cl, parses, use_gender)
-        if best is None:
-            continue
-        local = None if use_gender else _local_possessor(m, best, others, cl)
-        if local is not None and try_union(local, m):
-            antecedent[m.id] = local.id
-            read_by_form.add(m.id)
-            certainty[m.id] = ALTERNATIVE_CERTAINTY  # the salient person was the other choice
-            continue
-        if try_union(best, m):
-            antecedent[m.id] = best.id
-            # Another compatible cluster nearly as salient makes the choice uncertain, and so does distance,
-            # and so does a thing the pronoun may stand for.
-            far = min(m.seg - best.seg, len(DISTANCE_CERTAINTY) - 1)
-            sure = ALTERNATIVE_CERTAINTY if alternatives else 1.0
-            if m.key in thing_pronouns and _thing_subject_before(m, best, mention_tokens, parses):
-                sure = min(sure, THING_CERTAINTY)
-            certainty[m.id] = sure * DISTANCE_CERTAINTY[far]
-
+def _chains(st: CorefState, side: Side) -> Resolution:
     groups: dict[str, list[Mention]] = {}
-    for m in ms:
-        groups.setdefault(cl.find(m.id), []).append(m)
+    for m in st.mentions:
+        groups.setdefault(st.clusters.find(m.id), []).append(m)
     chains, chain_of = [], {}
     prefix = "S" if side == "source" else "T"
     for n, (_, members) in enumerate(sorted(groups.items(), key=lambda kv: _order(kv[1][0])), 1):
         cid = f"{prefix}{n}"
-        chains.append(Chain(cid, side, tuple(members)))
+        resolved = tuple(replace(mm, chain=cid, antecedent=st.antecedent.get(mm.id, ""),
+                                 certainty=st.certainty.get(mm.id, 1.0), read_by_form=mm.id in st.read_by_form)
+                         for mm in members)
+        chains.append(Chain(cid, side, resolved))
         for mm in members:
             chain_of[mm.id] = cid
-    return Resolution(chains, chain_of, certainty, antecedent, read_by_form)
+    return Resolution(chains, chain_of, dict(st.certainty), dict(st.antecedent), set(st.read_by_form))
 
 
 def _clause_subject(ms: Sequence[Mention], m: Mention, clause: int) -> Mention | None:
     return next((c for c in ms if c is not m and c.seg == m.seg and c.clause == clause
-                 and c.role in ("nsubj", "nsubj:pass") and c.pron_type != "possessive"), None)
+                 and c.role in SUBJECT_RELS and c.pron_type != "possessive"), None)
 
 
 def _clause_object(ms: Sequence[Mention], m: Mention, clause: int) -> Mention | None:
     return next((c for c in ms if c is not m and c.seg == m.seg and c.clause == clause
-                 and c.role in ("obj", "iobj", "dobj", "dative") and c.pron_type != "possessive"), None)
+                 and c.role in OBJECT_RELS and c.pron_type != "possessive"), None)
 
 
 def _appos_through_modifier(parsed: ParsedText, head: int, seg: int, by_seg_head: dict) -> Mention | None:
@@ -325,11 +470,11 @@ def _contained_pairs(ms: Sequence[Mention], parses: Sequence[ParsedText]) -> set
     name part is the same person, not a modifier, so a mention attached by one starts no such pair."""
     by_head: dict[tuple[int, int], list[Mention]] = {}
     for m in ms:
-        if m.kind != "zero":
+        if m.kind != MentionKind.ZERO:
             by_head.setdefault((m.seg, m.head), []).append(m)
     out: set[frozenset[str]] = set()
     for m in ms:
-        if m.kind == "zero":
+        if m.kind == MentionKind.ZERO:
             continue
         t = parses[m.seg].tokens[m.head]
         if t.is_root or t.deprel in ("appos", "nmod:appos", "flat", "flat:name", "compound"):
@@ -349,11 +494,11 @@ def _disjoint_arguments(ms: Sequence[Mention], parses: Sequence[ParsedText]) -> 
     describió": whoever described is not the one described, even where both are "she" a sentence earlier)."""
     subjects: dict[tuple[int, int], list[Mention]] = {}
     for m in ms:
-        if m.role in ("nsubj", "nsubj:pass") and m.pron_type != "possessive" and m.clause >= 0:
+        if m.role in SUBJECT_RELS and m.pron_type != "possessive" and m.clause >= 0:
             subjects.setdefault((m.seg, m.clause), []).append(m)
     out: set[frozenset[str]] = set()
     for m in ms:
-        if (m.kind != "pronoun" or m.pron_type != "personal" or m.role in ("nsubj", "nsubj:pass")
+        if (m.kind != MentionKind.PRONOUN or m.pron_type != "personal" or m.role in SUBJECT_RELS
                 or m.clause < 0):
             continue
         for clause in _subject_clauses(parses[m.seg], m.clause):
@@ -366,7 +511,7 @@ def _disjoint_arguments(ms: Sequence[Mention], parses: Sequence[ParsedText]) -> 
 def _intensifier_of(m: Mention, parsed: ParsedText) -> int:
     """The head token of the noun phrase a reflexive pronoun intensifies ("the minister herself", "Wintour
     himself": attached to the noun with no preposition of its own), or -1 where it is no intensifier."""
-    if m.kind != "pronoun" or m.pron_type != "reflexive":
+    if m.kind != MentionKind.PRONOUN or m.pron_type != "reflexive":
         return -1
     t = parsed.tokens[m.head]
     if t.is_root or any(k.deprel == "case" for k in parsed.children(t.i)):
@@ -427,8 +572,7 @@ def _unique_container(words: set[str], names: Sequence[Mention], cl: _Clusters) 
 
 def _different_names(cl: _Clusters, a: Mention, b: Mention) -> bool:
     """Two clusters that each carry a name, and no name in common: two people who share a role noun."""
-    na = {w for m in cl.members(a.id) if m.kind == "name" for w in m.key.split()}
-    nb = {w for m in cl.members(b.id) if m.kind == "name" for w in m.key.split()}
+    na, nb = cl.name_words(a.id), cl.name_words(b.id)
     return bool(na) and bool(nb) and not (na & nb)
 
 
@@ -456,9 +600,9 @@ def _relative_subject_head(parsed: ParsedText, clause: int) -> int:
     # The relative pronoun: marked PronType=Rel, or (where a tagger leaves it unmarked, as for "who") a
     # pronoun with no person that opens the clause.
     relative = [k for k in parsed.children(t.i)
-                if k.deprel in ("nsubj", "nsubj:pass") and k.upos == "PRON"
+                if k.deprel in SUBJECT_RELS and k.upos == "PRON"
                 and ("Rel" in (k.feat("PronType") or "") or (k.i == first and not k.feat("Person")))]
-    if not relative or t.deprel not in ("acl:relcl", "relcl", "acl"):
+    if not relative or t.deprel not in ("acl:relcl", "acl"):
         return -1
     return t.head
 
@@ -470,7 +614,7 @@ def _relative_antecedent(parsed: ParsedText, clause: int) -> int:
         if t is None or t.is_root:
             return -1
         # Some pipelines label a relative clause plain acl: its relative pronoun shows what it is.
-        if t.deprel in ("acl:relcl", "relcl") or (t.deprel == "acl" and any(
+        if t.deprel in RELATIVE_CLAUSE_RELS or (t.deprel == "acl" and any(
                 "Rel" in (k.feat("PronType") or "") for k in parsed.children(t.i))):
             return t.head
         t = parsed.tokens[t.head]
@@ -478,7 +622,7 @@ def _relative_antecedent(parsed: ParsedText, clause: int) -> int:
 
 
 # Relations inside a noun phrase: a word attached by one of them is part of its head's phrase.
-NOMINAL_RELS = frozenset({"det", "det:poss", "nmod:poss", "poss", "nmod", "appos", "amod", "flat", "flat:name",
+NOMINAL_RELS = frozenset({"det", "det:poss", "nmod:poss", "nmod", "appos", "amod", "flat", "flat:name",
                           "compound", "nmod:appos", "case", "fixed"})
 
 
@@ -504,7 +648,7 @@ def _set_off(parsed: ParsedText, i: int) -> bool:
     return first > 0 and parsed.tokens[first - 1].text in (",", "(", "-", "–", "—", ":")
 
 
-_ADJUNCTS = ("obl", "advcl", "advmod", "nmod", "dislocated", "discourse", "vocative", "parataxis", "prep", "npadvmod")
+_ADJUNCTS = ("obl", "advcl", "advmod", "nmod", "dislocated", "discourse", "vocative", "parataxis", "prep")
 
 
 def _in_fronted_adjunct(parsed: ParsedText, i: int, clause: int) -> bool:
@@ -533,126 +677,67 @@ def _subtree(parsed: ParsedText, i: int) -> set[int]:
 
 def _salience(cand: Mention, m: Mention) -> float:
     distance = m.seg - cand.seg
-    score = -0.8 * distance
+    score = -SALIENCE.per_segment * distance
     if distance == 0:
-        score -= min(0.02 * max(m.head - cand.head, 0), 0.4)  # nearer words first within a segment
-    if cand.role in ("nsubj", "nsubj:pass"):
-        score += 0.6
-    if cand.kind in ("name", "noun"):
-        score += 0.2
+        score -= min(SALIENCE.per_word * max(m.head - cand.head, 0), SALIENCE.per_word_cap)  # nearer words first
+    if cand.role in SUBJECT_RELS:
+        score += SALIENCE.subject
+    if cand.kind in NOMINAL_KINDS:
+        score += SALIENCE.nominal
     if cand.seg == m.seg and cand.sent == m.sent:
-        score += 0.3
+        score += SALIENCE.same_sentence
     return score
 
 
-def _pick_antecedent(m, ms, cl, parses, use_gender):
+@dataclass(frozen=True)
+class _Scope:
+    """The syntactic facts about a pronoun or zero subject that every candidate antecedent is tested against."""
+
+    containers: set[int]  # heads of the noun phrases a possessive stands in
+    reflexive_scope: set[int]  # clauses whose subject a reflexive may take
+    relative_heads: set[int]  # nouns a relative clause around a reflexive describes
+    governing: int  # the clause above a non-finite one, or -1
+    local_subject_clauses: set[int]  # the clause and those sharing its subject
+    own_numbers: set[str]
+    own_genders: set[str]
+
+    @classmethod
+    def of(cls, m: Mention, parsed: ParsedText) -> _Scope:
+        reflexive_scope = _reflexive_scope(parsed, m.head) if m.pron_type == "reflexive" else set()
+        return cls(
+            _noun_phrases_around(parsed, m.head) if m.pron_type == "possessive" else set(),
+            reflexive_scope,
+            # A reflexive in a relative clause whose subject is the relative pronoun is bound by the noun that
+            # clause describes ("a person who cares only about herself").
+            {h for h in (_relative_subject_head(parsed, k) for k in reflexive_scope) if h >= 0},
+            _nonfinite_under(parsed, m.clause),
+            _subject_clauses(parsed, m.clause),
+            {m.number} - {None},
+            _genders([m]),
+        )
+
+
+def _pick_antecedent(m: Mention, st: CorefState):
     """The best preceding candidate for a pronoun or zero subject, the compatible alternatives near it (a choice
     made only because nothing else was there counts itself as its alternative: it is uncertain), and every other
     candidate, best first."""
+    cl, use_gender = st.clusters, st.use_gender
+    sc = _Scope.of(m, st.parses[m.seg])
     scored: dict[str, tuple[float, Mention]] = {}
     fallback = None
-    containers = _noun_phrases_around(parses[m.seg], m.head) if m.pron_type == "possessive" else set()
-    reflexive_scope = _reflexive_scope(parses[m.seg], m.head) if m.pron_type == "reflexive" else set()
-    # A reflexive in a relative clause whose subject is the relative pronoun is bound by the noun that clause
-    # describes ("a person who cares only about herself").
-    relative_heads = {h for h in (_relative_subject_head(parses[m.seg], k) for k in reflexive_scope) if h >= 0}
-    governing = _nonfinite_under(parses[m.seg], m.clause)  # the clause above a non-finite one, or -1
-    local_subject_clauses = _subject_clauses(parses[m.seg], m.clause)
-    for c in ms:
-        # A possessive may point forward to the subject of its own clause ("Por su parte, la ingeniera...").
-        # So may one inside a non-finite clause, whose understood subject is that of the clause it depends on
-        # ("Alejándose de su discurso, la candidata...").
-        cataphoric = (
-            m.pron_type == "possessive"
-            and c.seg == m.seg
-            and c.clause in (m.clause, governing)
-            and c.clause >= 0
-            and c.role in ("nsubj", "nsubj:pass")
-            and c.kind in ("name", "noun")
-        )
-        if (_order(c) >= _order(m) and not cataphoric) or m.seg - c.seg > PRONOUN_WINDOW:
+    for c in st.window(m):
+        if not _before_or_cataphoric(c, m, sc) or _contains_possessive(c, m, st, sc):
             continue
-        # A possessive is not a person whose noun phrase contains it: "su hijo", "his son", "Alicia, su mujer",
-        # "el padre de su amiga" (the i-within-i condition).
-        if containers and any(x.seg == m.seg and x.head in containers for x in cl.members(c.id)):
-            continue
-        if c.kind == "pronoun" and c.pron_type == "possessive" and c.seg == m.seg:
+        if c.kind == MentionKind.PRONOUN and c.pron_type == "possessive" and c.seg == m.seg:
             # Two possessives of one sentence may belong to two people ("Ana y sus socios ... sus planes"):
             # an earlier one is the antecedent only when nothing else is ("su sueño ... su carrera").
-            if m.pron_type == "possessive" and _order(c) < _order(m) and _compatible(cl.members(c.id), [m],
-                                                                                     use_gender):
+            if m.pron_type == "possessive" and _order(c) < _order(m) and _compatible_sets(
+                    cl.numbers(c.id), sc.own_numbers, cl.genders(c.id), sc.own_genders, use_gender):
                 fallback = c
             continue
-        if not c.animate or c.person == "1":
-            continue  # clitics that may stand for things are anaphors only; a quoted "I" belongs to its speaker
-        if cl.find(c.id) == cl.find(m.id):
+        if _excluded(c, m, st, sc):
             continue
-        # Binding: a non-reflexive personal pronoun does not corefer with the subject of its own clause (which a
-        # conjoined verb without a subject shares: "took a ladder and sat on him"), nor, as the subject of a
-        # non-finite clause ("allowed her to stay"), with the subject of the clause above.
-        if (
-            m.kind == "pronoun"
-            and m.pron_type == "personal"
-            and c.seg == m.seg
-            and c.role in ("nsubj", "nsubj:pass")
-        ):
-            if m.role not in ("nsubj", "nsubj:pass") and c.clause in local_subject_clauses:
-                continue
-            if (
-                m.role in ("nsubj", "nsubj:pass")
-                and governing == c.clause >= 0
-            ):
-                continue
-        # Binding principle C: a subject (overt or zero) does not corefer with a name or noun inside its own
-        # clause ("∅ dijo [que el sospechoso...]", "he said John..."), unless the name stands in an adjunct
-        # put before it, which the subject does not command ("Según la cuenta del director, ∅ ha hecho...",
-        # "According to the director's count, she has made..."), or before a semicolon: that joins independent
-        # clauses, whatever the parser hung the first one on ("Ana was born in Tarvel; she grew up...").
-        if (
-            m.role in ("nsubj", "nsubj:pass")
-            and c.seg == m.seg
-            and c.kind in ("name", "noun")
-            and m.clause >= 0
-            and c.head in _subtree(parses[m.seg], m.clause)
-            and not _in_fronted_adjunct(parses[m.seg], c.head, m.clause)
-            and not _semicolon_between(parses[m.seg], c.head, m.head)
-        ):
-            continue
-        # A speaker outside a quotation is not a person mentioned inside it, and vice versa.
-        if c.seg == m.seg and c.sent == m.sent and c.quoted != m.quoted:
-            continue
-        # A reflexive takes the subject of its own clause: the verb it depends on, or the subject that verb
-        # shares or is controlled by ("tiene que sacar lo mejor de sí misma").
-        if m.pron_type == "reflexive" and not (c.seg == m.seg and (c.clause == m.clause
-                                                                   or c.clause in reflexive_scope
-                                                                   or c.head in relative_heads)):
-            continue
-        if not _compatible(cl.members(c.id), [m], use_gender):
-            continue
-        # A clitic that may stand for a thing joins a person only where the person's known gender matches it.
-        if use_gender and not m.animate and m.gender not in _genders(cl.members(c.id)):
-            continue
-        s = _salience(c, m)
-        if c.seg == m.seg and c.head in relative_heads:
-            s += 1.0
-        if (
-            m.pron_type == "possessive"
-            and c.seg == m.seg
-            and c.clause == m.clause
-            and c.role in ("nsubj", "nsubj:pass")
-        ):
-            s += 0.4  # possessives lean to the subject of their own clause
-        if (
-            m.pron_type == "possessive"
-            and c.seg == m.seg
-            and c.head == _relative_antecedent(parses[m.seg], m.clause)
-        ):
-            s += 0.6  # in a relative clause, the noun it describes is that clause's subject or object
-        members = cl.members(c.id)
-        # Entities mentioned often stay salient; on the source side a matching known gender is preferred.
-        s += min(0.1 * (len(members) - 1), 0.4)
-        if use_gender and m.gender and m.gender in _genders(members):
-            s += 0.5
+        s = _candidate_salience(c, m, st, sc)
         root = cl.find(c.id)
         if root not in scored or s > scored[root][0]:
             scored[root] = (s, c)
@@ -663,8 +748,116 @@ def _pick_antecedent(m, ms, cl, parses, use_gender):
     alternatives = [c for s, c in ranked[1:] if best_score - s < ALTERNATIVE_MARGIN]
     if not use_gender and alternatives and m.gender:
         # Gender-blind side: an alternative only matters when its gender would fit the pronoun.
-        alternatives = [c for c in alternatives if m.gender in (_genders(cl.members(c.id)) or {m.gender})]
+        alternatives = [c for c in alternatives if m.gender in (cl.genders(c.id) or {m.gender})]
     return best, alternatives, [c for _, c in ranked[1:]]
+
+
+def _before_or_cataphoric(c: Mention, m: Mention, sc: _Scope) -> bool:
+    """Whether c precedes m within the window, or is the subject a possessive may point forward to: that of
+    its own clause ("Por su parte, la ingeniera..."), or, inside a non-finite clause, that of the clause it
+    depends on ("Alejándose de su discurso, la candidata...")."""
+    cataphoric = (
+        m.pron_type == "possessive"
+        and c.seg == m.seg
+        and c.clause in (m.clause, sc.governing)
+        and c.clause >= 0
+        and c.role in SUBJECT_RELS
+        and c.kind in NOMINAL_KINDS
+    )
+    return not ((_order(c) >= _order(m) and not cataphoric) or m.seg - c.seg > PRONOUN_WINDOW)
+
+
+def _contains_possessive(c: Mention, m: Mention, st: CorefState, sc: _Scope) -> bool:
+    """A possessive is not a person whose noun phrase contains it: "su hijo", "his son", "Alicia, su mujer",
+    "el padre de su amiga" (the i-within-i condition)."""
+    return bool(sc.containers) and any(x.seg == m.seg and x.head in sc.containers
+                                       for x in st.clusters.members(c.id))
+
+
+def _excluded(c: Mention, m: Mention, st: CorefState, sc: _Scope) -> bool:
+    """Whether binding, quotation, reflexive scope or agreement rules candidate c out for m."""
+    cl, parses, use_gender = st.clusters, st.parses, st.use_gender
+    own_numbers, own_genders = sc.own_numbers, sc.own_genders
+    local_subject_clauses, governing = sc.local_subject_clauses, sc.governing
+    reflexive_scope, relative_heads = sc.reflexive_scope, sc.relative_heads
+    if not c.animate or c.person == "1":
+        return True  # clitics that may stand for things are anaphors only; a quoted "I" belongs to its speaker
+    if cl.find(c.id) == cl.find(m.id):
+        return True
+    # Binding: a non-reflexive personal pronoun does not corefer with the subject of its own clause (which a
+    # conjoined verb without a subject shares: "took a ladder and sat on him"), nor, as the subject of a
+    # non-finite clause ("allowed her to stay"), with the subject of the clause above.
+    if (
+        m.kind == MentionKind.PRONOUN
+        and m.pron_type == "personal"
+        and c.seg == m.seg
+        and c.role in SUBJECT_RELS
+    ):
+        if m.role not in SUBJECT_RELS and c.clause in local_subject_clauses:
+            return True
+        if (
+            m.role in SUBJECT_RELS
+            and governing == c.clause >= 0
+        ):
+            return True
+    # Binding principle C: a subject (overt or zero) does not corefer with a name or noun inside its own
+    # clause ("∅ dijo [que el sospechoso...]", "he said John..."), unless the name stands in an adjunct
+    # put before it, which the subject does not command ("Según la cuenta del director, ∅ ha hecho...",
+    # "According to the director's count, she has made..."), or before a semicolon: that joins independent
+    # clauses, whatever the parser hung the first one on ("Ana was born in Tarvel; she grew up...").
+    if (
+        m.role in SUBJECT_RELS
+        and c.seg == m.seg
+        and c.kind in NOMINAL_KINDS
+        and m.clause >= 0
+        and c.head in _subtree(parses[m.seg], m.clause)
+        and not _in_fronted_adjunct(parses[m.seg], c.head, m.clause)
+        and not _semicolon_between(parses[m.seg], c.head, m.head)
+    ):
+        return True
+    # A speaker outside a quotation is not a person mentioned inside it, and vice versa.
+    if c.seg == m.seg and c.sent == m.sent and c.quoted != m.quoted:
+        return True
+    # A reflexive takes the subject of its own clause: the verb it depends on, or the subject that verb
+    # shares or is controlled by ("tiene que sacar lo mejor de sí misma").
+    if m.pron_type == "reflexive" and not (c.seg == m.seg and (c.clause == m.clause
+                                                               or c.clause in reflexive_scope
+                                                               or c.head in relative_heads)):
+        return True
+    if not _compatible_sets(cl.numbers(c.id), own_numbers, cl.genders(c.id), own_genders, use_gender):
+        return True
+    # A clitic that may stand for a thing joins a person only where the person's known gender matches it.
+    if use_gender and not m.animate and m.gender not in cl.genders(c.id):
+        return True
+    return False
+
+
+def _candidate_salience(c: Mention, m: Mention, st: CorefState, sc: _Scope) -> float:
+    """How salient candidate c is as m's antecedent."""
+    cl, parses, use_gender = st.clusters, st.parses, st.use_gender
+    relative_heads = sc.relative_heads
+    s = _salience(c, m)
+    if c.seg == m.seg and c.head in relative_heads:
+        s += SALIENCE.relative_head
+    if (
+        m.pron_type == "possessive"
+        and c.seg == m.seg
+        and c.clause == m.clause
+        and c.role in SUBJECT_RELS
+    ):
+        s += SALIENCE.possessive_own_subject  # possessives lean to the subject of their own clause
+    if (
+        m.pron_type == "possessive"
+        and c.seg == m.seg
+        and c.head == _relative_antecedent(parses[m.seg], m.clause)
+    ):
+        # In a relative clause, the noun it describes is that clause's subject or object.
+        s += SALIENCE.possessive_relative_antecedent
+    # Entities mentioned often stay salient; on the source side a matching known gender is preferred.
+    s += min(SALIENCE.per_mention * (len(cl.members(c.id)) - 1), SALIENCE.per_mention_cap)
+    if use_gender and m.gender and m.gender in cl.genders(c.id):
+        s += SALIENCE.known_gender
+    return s
 
 
 def _thing_subject_before(m: Mention, best: Mention, mention_tokens: set[tuple[int, int]],
@@ -672,9 +865,9 @@ def _thing_subject_before(m: Mention, best: Mention, mention_tokens: set[tuple[i
     """Whether a subject pronoun that also stands for things has a thing noun as a subject that agrees with it
     in gender and number in its own segment before it or in the segment before, no further back than the
     person picked for it ("La mairie a confirmé que Varel... « ... », a-t-elle ajouté")."""
-    if m.kind != "pronoun" or m.pron_type != "personal" or m.role not in ("nsubj", "nsubj:pass"):
+    if m.kind != MentionKind.PRONOUN or m.pron_type != "personal" or m.role not in SUBJECT_RELS:
         return False
-    if m.gender not in ("fem", "masc"):
+    if m.gender not in BINARY:
         return False
     for seg in (m.seg, m.seg - 1):
         if seg < 0 or seg < best.seg:
@@ -682,7 +875,7 @@ def _thing_subject_before(m: Mention, best: Mention, mention_tokens: set[tuple[i
         for t in parses[seg].tokens:
             if seg == m.seg and t.i >= m.head:
                 break
-            if (t.upos == "NOUN" and t.deprel in ("nsubj", "nsubj:pass") and t.gender == m.gender
+            if (t.upos == "NOUN" and t.deprel in SUBJECT_RELS and t.gender == m.gender
                     and t.feat("Number") == "Sing" and (seg, t.i) not in mention_tokens):
                 return True
     return False
@@ -697,23 +890,20 @@ def _local_possessor(m: Mention, best: Mention, others: Sequence[Mention], cl: _
     such a majority proves nothing about the possessive and keeps it; so does an object whose chain shows the
     other gender too. Only the direct object competes: a person in a prepositional phrase or inside the
     subject ("Ortuño's wife ... made his first appearance") is no rival to the subject for a reader."""
-    if m.pron_type != "possessive" or m.gender not in ("fem", "masc"):
+    if m.pron_type != "possessive" or m.gender not in BINARY:
         return None
     if (best.seg != m.seg or best.sent != m.sent or _order(best) > _order(m)
-            or best.role not in ("nsubj", "nsubj:pass") or best.clause < 0):
+            or best.role not in SUBJECT_RELS or best.clause < 0):
         return None
-    other_gender = "masc" if m.gender == "fem" else "fem"
+    other_gender = Gender.MASC if m.gender == Gender.FEM else Gender.FEM
     said = [mk.gender for x in cl.members(best.id) for mk in x.marks]
     if best.gender != other_gender or said.count(other_gender) <= said.count(m.gender):
         return None
     fitting = [
         c for c in others
         if c.seg == m.seg and c.clause == best.clause and c.role in OBJECT_RELS
-        and _order(best) < _order(c) < _order(m) and c.kind in ("name", "noun")
-        and other_gender not in _genders(cl.members(c.id))
+        and _order(best) < _order(c) < _order(m) and c.kind in NOMINAL_KINDS
+        and other_gender not in cl.genders(c.id)
     ]
     return max(fitting, key=_order) if fitting else None
 
-
-# Direct and indirect objects (UD and ClearNLP labels).
-OBJECT_RELS = ("obj", "dobj", "iobj", "dative")

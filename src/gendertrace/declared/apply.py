@@ -12,11 +12,12 @@ from gendertrace.evidence.resolve import dedupe, resolve_gender
 from gendertrace.mentions.extract import name_key
 from gendertrace.model import Entity, EvidenceItem, Mention
 from gendertrace.rules import load_rules
+from gendertrace.settings import WEIGHTS
+from gendertrace.vocab import EvidenceKind, MentionKind, Rule
 
-# A declaration decides: it outweighs the textual evidence a document plausibly holds about one person.
-W_DECLARED = 3.0
-# A first name is weak evidence: below one agreeing adjective, so any gendered word of the text outranks it.
-W_FIRST_NAME = 0.2
+# A declaration decides; a first name is weak evidence: rules/scoring/weights.yaml, section "evidence".
+W_DECLARED = WEIGHTS.evidence.declared
+W_FIRST_NAME = WEIGHTS.evidence.first_name
 
 
 def _form_gender(form: str, lang: str) -> str | None:
@@ -49,7 +50,7 @@ def _declared_person(
     mentions: Sequence[Mention], sheet: EntitySheet
 ) -> tuple[DeclaredPerson, Mention] | None:
     for m in mentions:
-        if m.kind == "name":
+        if m.kind == MentionKind.NAME:
             person = sheet.person_for(m.key)
             if person is not None:
                 return person, m
@@ -88,14 +89,14 @@ def apply_declarations(
                         end=m.end,
                         text=m.text,
                         gender=accepted[0],
-                        kind="declared",
+                        kind=EvidenceKind.DECLARED,
                         weight=W_DECLARED,
                         rule=f"entity sheet: {person.name} ({person.describe()}; matched a {where} name)",
                     )
                 )
         if names and not accepted:
             for m in tuple(e.source_mentions) + tuple(e.target_mentions):
-                first = name_key(m.text).split(" ")[0] if m.kind == "name" else ""
+                first = name_key(m.text).split(" ")[0] if m.kind == MentionKind.NAME else ""
                 if first in names:
                     extra.append(
                         EvidenceItem(
@@ -106,9 +107,9 @@ def apply_declarations(
                             end=m.start + len(first),
                             text=m.text[: len(first)],
                             gender=names[first],
-                            kind="first-name",
+                            kind=EvidenceKind.FIRST_NAME,
                             weight=W_FIRST_NAME,
-                            rule="first-name list (weak, opt-in)",
+                            rule=Rule.FIRST_NAME_LIST,
                         )
                     )
                     break
@@ -119,7 +120,7 @@ def apply_declarations(
         if accepted:
             evidence = tuple(extra) + tuple(x for x in evidence if x.kind != "declared")
         # A declaration decides alone: the other evidence stays listed, for the editor to see.
-        verdict = resolve_gender([x for x in evidence if x.kind == "declared"] if accepted else evidence)
+        verdict = resolve_gender([x for x in evidence if x.kind == EvidenceKind.DECLARED] if accepted else evidence)
         out.append(
             replace(
                 e, evidence=evidence, gender=verdict.gender, confidence=verdict.confidence, declared=accepted

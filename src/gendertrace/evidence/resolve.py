@@ -12,16 +12,17 @@ from dataclasses import dataclass, replace
 
 from gendertrace.coref.sieves import Resolution
 from gendertrace.model import Entity, EvidenceItem, Link, Mention
+from gendertrace.settings import WEIGHTS
 
-# Evidence weight at which a single kind of evidence is considered fairly strong (confidence about 0.63).
-STRENGTH_SCALE = 0.7
+# Evidence weight at which a single kind of evidence is fairly strong: rules/scoring/weights.yaml, "resolution".
+STRENGTH_SCALE = WEIGHTS.resolution.strength_scale
 
 
 def dedupe(items: Iterable[EvidenceItem]) -> tuple[EvidenceItem, ...]:
     """One item per located word: two mentions of one chain may share an agreeing word."""
     seen: dict[tuple, EvidenceItem] = {}
     for it in items:
-        key = (it.side, it.seg, it.start, it.end)
+        key = it.span
         if key not in seen or it.weight > seen[key].weight:
             seen[key] = it
     return tuple(sorted(seen.values(), key=lambda e: (e.side != "source", e.seg, e.start)))

@@ -8,62 +8,41 @@ adjective or participle agreeing with the subject, an honorific.
 
 from __future__ import annotations
 
-from collections.abc import Iterable
+from collections.abc import Callable, Iterable
 from dataclasses import replace
 
-from gendertrace.model import EvidenceItem, Mention, ParsedText, Side, Token
+from gendertrace.mentions.agreement import (
+    W_ADJECTIVE,
+    W_CLITIC,
+    W_DETERMINER,
+    W_LEXICAL,
+    W_PRONOUN,
+    W_TITLE,
+    W_UNMARKED_NOUN,
+    article_form,
+    honorifics_before,
+    is_plural,
+    np_marks,
+    predicate_marks,
+)
+from gendertrace.mentions.segment import SegmentSide
+from gendertrace.model import Mention, ParsedText, Side, Token
 from gendertrace.rules import LanguageRules
 from gendertrace.rules.loader import pronoun_key
-
-SUBJECT_RELS = {"nsubj", "nsubj:pass"}
-NAME_LINK_RELS = {"flat", "flat:name", "compound", "appos"}
-# Relations that mean a clause already has a subject, overt or expletive.
-SUBJECT_LIKE = {"nsubj", "nsubj:pass", "csubj", "csubj:pass", "expl", "expl:pass", "expl:impers", "expl:subj"}
-
-# Weights of the kinds of marks (common practice, no source; tuned on the benchmark, see docs/benchmarks.md).
-W_PRONOUN = 1.0
-# Clitics that also stand for things ("lo", "la"): their gender may be a noun's, so alone they settle nothing.
-W_CLITIC = 0.3
-W_TITLE = 1.0
-W_LEXICAL = 0.9  # an inherently gendered noun form (madre, actress) or a marked feminine role noun
-W_UNMARKED_NOUN = 0.5  # a masculine role-noun form, which is also the generic form
-W_DETERMINER = 0.8
-W_ADJECTIVE = 0.6
-W_PREDICATE = 0.7
-# Masculine agreement is also the default with no person in view ("es necesario"), so it counts for less on
-# a zero subject, whose referent is itself inferred.
-W_ZERO_MASC_PREDICATE = 0.35
-
-
-def _mark(
-    side: Side,
-    seg: int,
-    seg_id: str,
-    tok: Token | list[Token],
-    gender: str,
-    kind: str,
-    weight: float,
-    rule: str,
-) -> EvidenceItem:
-    toks = tok if isinstance(tok, list) else [tok]
-    start, end = toks[0].start, toks[-1].end
-    return EvidenceItem(
-        side=side,
-        seg=seg,
-        seg_id=seg_id,
-        start=start,
-        end=end,
-        text=" ".join(t.text for t in toks),
-        gender=gender,
-        kind=kind,
-        weight=weight,
-        rule=rule,
-        tokens=tuple(t.i for t in toks),
-    )
-
-
-def _is_plural(tok: Token) -> bool:
-    return tok.feat("Number") == "Plur"
+from gendertrace.vocab import (
+    BINARY,
+    CLAUSE_FUNCTION_RELS,
+    NAME_LINK_RELS,
+    NOMINAL_KINDS,
+    RELATIVE_CLAUSE_RELS,
+    SUBJECT_LIKE_RELS,
+    SUBJECT_RELS,
+    EvidenceKind,
+    Gender,
+    MentionKind,
+    NeutralRule,
+    Rule,
+)
 
 
 def _name_spans(parsed: ParsedText, known_names: set[str],
@@ -114,7 +93,7 @@ def _unlabelled_speakers(parsed: ParsedText, speech_verbs: frozenset[str]) -> se
     if not speech_verbs:
         return out
     for t in parsed.tokens:
-        if (t.upos == "PROPN" and not t.ent and t.deprel in ("nsubj", "nsubj:pass") and not t.is_root
+        if (t.upos == "PROPN" and not t.ent and t.deprel in SUBJECT_RELS and not t.is_root
                 and parsed.tokens[t.head].lemma.lower() in speech_verbs):
             out.add(t.i)
             out.update(k.i for k in parsed.children(t.i)
@@ -153,52 +132,58 @@ def extract_mentions(
     known_names: Iterable[str] = (),
 ) -> list[Mention]:
     """All person mentions of one segment side, in text order, with their gender marks."""
-    known = {name_key(n) for n in known_names}
-    toks = parsed.tokens
-    quoted = _quoted_tokens(parsed)
-    prefix = f"{side[0]}{seg}."
+    sc = SegmentSide(parsed, seg, seg_id, side, rules, {name_key(n) for n in known_names}, _quoted_tokens(parsed))
+    sc.noun_like = _noun_like(sc)
     out: list[Mention] = []
-    used: set[int] = set()
+    for extractor in EXTRACTORS:
+        out += extractor(sc)
+    out = [replace(m, quoted=True) if m.tokens and m.tokens[0] in sc.quoted else m for m in out]
+    # Text order; at one position a name before a one-word mention, and a zero subject last.
+    out.sort(key=lambda m: (m.start, m.kind == MentionKind.ZERO, m.kind != MentionKind.NAME,
+                            m.head if m.kind in (MentionKind.NOUN, MentionKind.PRONOUN) else 0))
+    return out
 
-    # Names (not neopronouns the recogniser took for names: "Xe", "Ze").
+
+def name_mentions(sc: SegmentSide) -> list[Mention]:
+    """Person names (not neopronouns the recogniser took for names: "Xe", "Ze"), each with the titles before
+    it and its agreeing words."""
+    rules, toks, parsed = sc.rules, sc.toks, sc.parsed
     spans = [
         sp
-        for sp in _name_spans(parsed, known, rules.speech_verbs)
-        if not any(f.gender == "neutral" for i in sp for f in rules.pronoun(toks[i].text))
+        for sp in _name_spans(parsed, sc.known, rules.speech_verbs)
+        if not any(f.gender == Gender.NEUTRAL for i in sp for f in rules.pronoun(toks[i].text))
         and not any(toks[i].upos == "PRON" and rules.pronoun(toks[i].text) for i in sp)
     ]
+    out = []
     for span in spans:
         words = [toks[i] for i in span]
         # An honorific at the start of a name span is a title, not part of the name.
         title_marks = []
         while words and rules.honorific(words[0].text):
-            title_marks.append(
-                _mark(
-                    side, seg, seg_id, words[0], rules.honorific(words[0].text), "title", W_TITLE, "honorific"
-                )
-            )
+            title_marks.append(sc.mark(words[0], rules.honorific(words[0].text), EvidenceKind.TITLE, W_TITLE,
+                                       Rule.HONORIFIC))
             words = words[1:]
         # So is a gendered person noun there ("King Aldric", "Sister Maren"): the recogniser often takes the
         # title into the name. Only nouns whose form alone shows the gender count (not a generic masculine).
         while len(words) > 1 and words[0].text[:1].isupper() and (title := _title_noun_gender(words[0].text, rules)):
-            title_marks.append(_mark(side, seg, seg_id, words[0], title, "lexical", W_LEXICAL, "gendered noun"))
+            title_marks.append(sc.mark(words[0], title, EvidenceKind.LEXICAL, W_LEXICAL, Rule.GENDERED_NOUN))
             words = words[1:]
         if not words:
             continue
         ids = [w.i for w in words]
         head = _span_head(parsed, ids)
-        marks = title_marks + _honorifics_before(parsed, head, ids, rules, side, seg, seg_id)
-        marks += _np_marks(parsed, head, rules, side, seg, seg_id, noun_form=False)
+        marks = title_marks + honorifics_before(sc, head, ids)
+        marks += np_marks(sc, head, noun_form=False)
         role, clause = _role_and_clause(parsed, head)
-        marks += _predicate_marks(parsed, head, role, clause, rules, side, seg, seg_id, zero=False)
+        marks += predicate_marks(sc, head, role, clause, zero=False)
         out.append(
             Mention(
-                id=f"{prefix}{head}",
-                side=side,
-                seg=seg,
+                id=f"{sc.prefix}{head}",
+                side=sc.side,
+                seg=sc.seg,
                 head=head,
                 tokens=tuple(ids),
-                kind="name",
+                kind=MentionKind.NAME,
                 text=parsed.text[words[0].start : words[-1].end],
                 start=words[0].start,
                 end=words[-1].end,
@@ -211,195 +196,225 @@ def extract_mentions(
                 sent=toks[head].sent,
             )
         )
-        used.update(ids)
+        sc.claimed.update(ids)
+    return out
 
-    # Person nouns the tagger took for something else ("la ingeniera" as a verb) still count after an article.
-    noun_like = {
+
+def _noun_like(sc: SegmentSide) -> set[int]:
+    rules, toks, parsed = sc.rules, sc.toks, sc.parsed
+    return {
         t.i
         for t in toks
         if rules.is_person_noun(t.text)
-        and not _is_plural(t)
+        and not is_plural(t)
         and not _noun_modifier(parsed, t, rules)
         and (t.text.lower() not in rules.title_only or _as_title(t, toks))
         and (
             t.upos in ("NOUN", "PROPN")
-            or (t.i > 0 and _article_form(toks[t.i - 1], rules) is not None)
+            or (t.i > 0 and article_form(toks[t.i - 1], rules) is not None)
             or (
                 t.i > 1
                 and toks[t.i - 1].upos == "ADJ"
-                and _article_form(toks[t.i - 2], rules) is not None
+                and article_form(toks[t.i - 2], rules) is not None
             )
         )
     }
+
+
+def noun_mentions(sc: SegmentSide) -> list[Mention]:
+    """Role and kinship nouns with their agreeing words, and singular forms marking no binary gender ("niñe",
+    "l'étudiant·e": a person noun with a neutral mark)."""
+    rules, toks, parsed = sc.rules, sc.toks, sc.parsed
+    out = []
     for t in toks:
-        if t.i in used:
+        if t.i in sc.claimed:
             continue
-        # Role and kinship nouns.
-        if t.i in noun_like:
-            gender, counterpart = rules.noun_counterpart(t.text)
-            marks = []
-            if gender == "fem" or (gender == "masc" and not rules.articles):
-                # Languages without gendered articles (English) have only inherently gendered nouns here.
-                marks.append(_mark(side, seg, seg_id, t, gender, "lexical", W_LEXICAL, "gendered noun"))
-            elif gender == "masc":
-                rule = (
-                    "generic masculine noun"
-                    if t.text.lower() in rules.generic_masculine
-                    else "masculine noun form"
-                )
-                marks.append(_mark(side, seg, seg_id, t, gender, "lexical", W_UNMARKED_NOUN, rule))
-            marks += _honorifics_before(parsed, t.i, [t.i], rules, side, seg, seg_id)
-            marks += _np_marks(parsed, t.i, rules, side, seg, seg_id, noun_form=True)
-            if not any(mk.rule == "determiner agreement" for mk in marks) and t.i > 0:
-                before = toks[t.i - 1]
-                g = _article_form(before, rules)
-                if g in ("fem", "masc"):
-                    marks.append(
-                        _mark(
-                            side, seg, seg_id, before, g, "morphology", W_DETERMINER, "determiner agreement"
-                        )
-                    )
+        if t.i in sc.noun_like:
+            out.append(_role_noun(sc, t))
+        elif _neutral_word(parsed, t, rules) == "sing" and t.upos in ("NOUN", "PROPN"):
             role, clause = _role_and_clause(parsed, t.i)
-            marks += _predicate_marks(parsed, t.i, role, clause, rules, side, seg, seg_id, zero=False)
-            if gender == "epicene":
-                marks = []  # grammatical gender only: "la persona" may be anyone
-            masc_key = counterpart if gender == "fem" else t.text.lower()
-            out.append(_noun_mention(prefix, side, seg, t, role, clause, masc_key, marks))
+            mark = sc.mark(t, Gender.NEUTRAL, EvidenceKind.MORPHOLOGY, W_LEXICAL, NEUTRAL_FORM_RULE)
+            out.append(_noun_mention(sc, t, role, clause, t.text.lower(), [mark]))
+        else:
             continue
-        # Singular forms marking no binary gender ("niñe", "l'étudiant·e"): a person noun, a neutral mark.
-        if _neutral_word(parsed, t, rules) == "sing" and t.upos in ("NOUN", "PROPN"):
-            role, clause = _role_and_clause(parsed, t.i)
-            mark = _mark(side, seg, seg_id, t, "neutral", "morphology", W_LEXICAL, NEUTRAL_FORM_RULE)
-            out.append(_noun_mention(prefix, side, seg, t, role, clause, t.text.lower(), [mark]))
+        sc.claimed.add(t.i)
+    return out
+
+
+def _role_noun(sc: SegmentSide, t: Token) -> Mention:
+    rules, toks, parsed = sc.rules, sc.toks, sc.parsed
+    gender, counterpart = rules.noun_counterpart(t.text)
+    marks = []
+    if gender == Gender.FEM or (gender == Gender.MASC and not rules.articles):
+        # Languages without gendered articles (English) have only inherently gendered nouns here.
+        marks.append(sc.mark(t, gender, EvidenceKind.LEXICAL, W_LEXICAL, Rule.GENDERED_NOUN))
+    elif gender == Gender.MASC:
+        rule = (
+            Rule.GENERIC_MASCULINE_NOUN
+            if t.text.lower() in rules.generic_masculine
+            else Rule.MASCULINE_NOUN_FORM
+        )
+        marks.append(sc.mark(t, gender, EvidenceKind.LEXICAL, W_UNMARKED_NOUN, rule))
+    marks += honorifics_before(sc, t.i, [t.i])
+    marks += np_marks(sc, t.i, noun_form=True)
+    if not any(mk.rule == Rule.DETERMINER_AGREEMENT for mk in marks) and t.i > 0:
+        before = toks[t.i - 1]
+        g = article_form(before, rules)
+        if g in BINARY:
+            marks.append(sc.mark(before, g, EvidenceKind.MORPHOLOGY, W_DETERMINER, Rule.DETERMINER_AGREEMENT))
+    role, clause = _role_and_clause(parsed, t.i)
+    marks += predicate_marks(sc, t.i, role, clause, zero=False)
+    if gender == "epicene":
+        marks = []  # grammatical gender only: "la persona" may be anyone
+    masc_key = counterpart if gender == Gender.FEM else t.text.lower()
+    return _noun_mention(sc, t, role, clause, masc_key, marks)
+
+
+def pronoun_mentions(sc: SegmentSide) -> list[Mention]:
+    """Personal, possessive and reflexive pronouns of the 3rd person (1st inside quotations), and
+    demonstratives that take up a person ("esta dice", "cette dernière")."""
+    rules, toks, parsed = sc.rules, sc.toks, sc.parsed
+    out = []
+    for t in toks:
+        if t.i in sc.claimed:
             continue
         # "cette dernière", "esta última" (the latter): a demonstrative's nominalised adjective takes up a
         # referent like a pronoun that may also stand for a thing. A demonstrative pronoun that says something
         # ("pero esta dice que...") is a person.
         speaker = _demonstrative_speaker(parsed, t, rules)
         if speaker or _latter(parsed, t, rules):
-            role, clause = _role_and_clause(parsed, t.i)
-            marks = [_mark(side, seg, seg_id, t, t.gender, "pronoun", W_PRONOUN if speaker else W_CLITIC,
-                           "demonstrative speaker" if speaker else "demonstrative latter")]
-            marks += _predicate_marks(parsed, t.i, role, clause, rules, side, seg, seg_id, zero=False)
-            out.append(Mention(id=f"{prefix}{t.i}", side=side, seg=seg, head=t.i, tokens=(t.i,), kind="pronoun",
-                               text=t.text, start=t.start, end=t.end, number="sing", person="3",
-                               pron_type="personal", role=role, clause=clause, key=t.text.lower(),
-                               marks=tuple(marks), sent=t.sent, animate=speaker))
+            out.append(_demonstrative(sc, t, speaker))
             continue
-        # Pronouns (not an article the tagger misread before a person noun).
-        if t.i + 1 in noun_like and rules.article_gender(t.text) is not None:
+        # Not an article the tagger misread before a person noun.
+        if t.i + 1 in sc.noun_like and rules.article_gender(t.text) is not None:
             continue
-        neutral_form = (
-            any(f.gender == "neutral" for f in rules.pronoun(t.text)) and t.deprel in NEUTRAL_PRONOUN_RELS
-        )
-        # An inverted subject clitic ("dit-elle", "a-t-il") is a pronoun and the subject of the verb before it,
-        # whatever the tagger took it for.
-        inverted_verb = _inverted_subject_of(parsed, t)
-        inverted = inverted_verb >= 0 or (len(t.text) > 1 and t.text.startswith("-") and t.deprel.startswith("nsubj"))
-        if (t.upos in ("PRON", "DET") or neutral_form or inverted) and rules.pronoun(t.text):
-            # Taggers often miss neopronouns and "elle" as pronouns: their relation in the clause decides.
-            form = (_pick_pronoun_form(parsed, t, rules) if t.upos in ("PRON", "DET") or inverted
-                    else _neutral_form(t, rules))
-            if form is not None and form.stressed and _after_preposition(parsed, t):
-                form = replace(form, gender=form.stressed)
-            singular_they = form is not None and form.number == "plur" and form.singular_neutral
-            if form is None or (form.number == "plur" and not singular_they):
-                continue
-            if form.person == "1" and t.i not in quoted:
-                continue  # outside quotations "I" is the writer, not a person of the document
-            # An agreeing intensifier shows the person's gender even on an ungendered pronoun: "de sí misma",
-            # "ella misma", "sé stessa".
-            intensifiers = [k for k in parsed.children(t.i) if k.deprel == "amod" and k.upos in ("ADJ", "DET")
-                            and k.gender in ("fem", "masc") and not _is_plural(k)]
-            if form.type == "reflexive" and form.gender is None and not intensifiers:
-                continue  # "se", "sí": mostly impersonal or passive markers, and never gendered
-            if is_expletive(parsed, t, rules):
-                continue
-            if not form.animate and form.case in ("acc", "dat") and not _verb_clitic(parsed, t):
-                continue  # "lo mismo", "lo que": the neuter article, not an object pronoun
-            marks = []
-            if singular_they:
-                # Kept only where its chain has one named or singular antecedent (see singular_they_ok).
-                marks.append(_mark(side, seg, seg_id, t, "neutral", "pronoun", W_PRONOUN, SINGULAR_THEY_RULE))
-            elif form.gender and not _gender_doublet(parsed, t, rules):
-                weight = W_PRONOUN if form.animate else W_CLITIC
-                marks.append(
-                    _mark(side, seg, seg_id, t, form.gender, "pronoun", weight, f"{form.type} pronoun")
-                )
-            elif form.case == "acc" and (part := _participle_after_clitic(parsed, t)) is not None:
-                # "l'ha descritta", "elle l'a vue": the participle shows the elided clitic's gender.
-                marks.append(_mark(side, seg, seg_id, part, part.gender, "agreement", W_CLITIC,
-                                   "participle agreeing with an object clitic"))
-            marks += [_mark(side, seg, seg_id, k, k.gender, "agreement", W_ADJECTIVE, "agreeing intensifier")
-                      for k in intensifiers]
-            role, clause = _role_and_clause(parsed, t.i)
-            if inverted_verb >= 0:
-                verb = toks[inverted_verb]
-                role = "nsubj"
-                clause = verb.head if verb.deprel in ("aux", "aux:pass", "aux:tense", "cop") else verb.i
-            if form.type == "possessive":
-                clause = _governing_clause(parsed, t.i)
-            if form.type == "personal":
-                marks += _predicate_marks(parsed, t.i, role, clause, rules, side, seg, seg_id, zero=False)
-            out.append(
-                Mention(
-                    id=f"{prefix}{t.i}",
-                    side=side,
-                    seg=seg,
-                    head=t.i,
-                    tokens=(t.i,),
-                    kind="pronoun",
-                    text=t.text,
-                    start=t.start,
-                    end=t.end,
-                    number=None if singular_they else form.number,
-                    person=form.person,
-                    pron_type=form.type,
-                    role=role,
-                    clause=clause,
-                    key=pronoun_key(t.text),
-                    marks=tuple(marks),
-                    sent=t.sent,
-                    animate=form.animate,
-                    case=form.case,
-                )
-            )
-
-    if rules.pro_drop:
-        out += _zero_subjects(parsed, seg, seg_id, side, rules, prefix, quoted)
-    out = [replace(m, quoted=True) if m.tokens and m.tokens[0] in quoted else m for m in out]
-    out.sort(key=lambda m: (m.start, m.kind == "zero"))
+        m = _pronoun(sc, t)
+        if m is not None:
+            out.append(m)
     return out
 
 
-SINGULAR_THEY_RULE = "singular they"
-NEUTRAL_FORM_RULE = "neutral form"
-# Relations in which a word the tagger did not call a pronoun still stands as one (UD and ClearNLP labels).
+def _demonstrative(sc: SegmentSide, t: Token, speaker: bool) -> Mention:
+    role, clause = _role_and_clause(sc.parsed, t.i)
+    marks = [sc.mark(t, t.gender, EvidenceKind.PRONOUN, W_PRONOUN if speaker else W_CLITIC,
+                     Rule.DEMONSTRATIVE_SPEAKER if speaker else Rule.DEMONSTRATIVE_LATTER)]
+    marks += predicate_marks(sc, t.i, role, clause, zero=False)
+    return Mention(id=f"{sc.prefix}{t.i}", side=sc.side, seg=sc.seg, head=t.i, tokens=(t.i,),
+                   kind=MentionKind.PRONOUN, text=t.text, start=t.start, end=t.end, number="sing", person="3",
+                   pron_type="personal", role=role, clause=clause, key=t.text.lower(), marks=tuple(marks),
+                   sent=t.sent, animate=speaker)
+
+
+def _pronoun(sc: SegmentSide, t: Token) -> Mention | None:
+    """The pronoun mention of token t, or None where t is no person pronoun here."""
+    rules, toks, parsed = sc.rules, sc.toks, sc.parsed
+    neutral_form = (
+        any(f.gender == Gender.NEUTRAL for f in rules.pronoun(t.text)) and t.deprel in NEUTRAL_PRONOUN_RELS
+    )
+    # An inverted subject clitic ("dit-elle", "a-t-il") is a pronoun and the subject of the verb before it,
+    # whatever the tagger took it for.
+    inverted_verb = _inverted_subject_of(parsed, t)
+    inverted = inverted_verb >= 0 or (len(t.text) > 1 and t.text.startswith("-") and t.deprel.startswith("nsubj"))
+    if not ((t.upos in ("PRON", "DET") or neutral_form or inverted) and rules.pronoun(t.text)):
+        return None
+    # Taggers often miss neopronouns and "elle" as pronouns: their relation in the clause decides.
+    form = (_pick_pronoun_form(parsed, t, rules) if t.upos in ("PRON", "DET") or inverted
+            else _neutral_form(t, rules))
+    if form is not None and form.stressed and _after_preposition(parsed, t):
+        form = replace(form, gender=form.stressed)
+    singular_they = form is not None and form.number == "plur" and form.singular_neutral
+    if form is None or (form.number == "plur" and not singular_they):
+        return None
+    if form.person == "1" and t.i not in sc.quoted:
+        return None  # outside quotations "I" is the writer, not a person of the document
+    # An agreeing intensifier shows the person's gender even on an ungendered pronoun: "de sí misma",
+    # "ella misma", "sé stessa".
+    intensifiers = [k for k in parsed.children(t.i) if k.deprel == "amod" and k.upos in ("ADJ", "DET")
+                    and k.gender in BINARY and not is_plural(k)]
+    if form.type == "reflexive" and form.gender is None and not intensifiers:
+        return None  # "se", "sí": mostly impersonal or passive markers, and never gendered
+    if is_expletive(parsed, t, rules):
+        return None
+    if not form.animate and form.case in ("acc", "dat") and not _verb_clitic(parsed, t):
+        return None  # "lo mismo", "lo que": the neuter article, not an object pronoun
+    marks = []
+    if singular_they:
+        # Kept only where its chain has one named or singular antecedent (see singular_they_ok).
+        marks.append(sc.mark(t, Gender.NEUTRAL, EvidenceKind.PRONOUN, W_PRONOUN, SINGULAR_THEY_RULE))
+    elif form.gender and not _gender_doublet(parsed, t, rules):
+        weight = W_PRONOUN if form.animate else W_CLITIC
+        marks.append(sc.mark(t, form.gender, EvidenceKind.PRONOUN, weight, Rule.pronoun(form.type)))
+    elif form.case == "acc" and (part := _participle_after_clitic(parsed, t)) is not None:
+        # "l'ha descritta", "elle l'a vue": the participle shows the elided clitic's gender.
+        marks.append(sc.mark(part, part.gender, EvidenceKind.AGREEMENT, W_CLITIC, Rule.OBJECT_CLITIC_PARTICIPLE))
+    marks += [sc.mark(k, k.gender, EvidenceKind.AGREEMENT, W_ADJECTIVE, Rule.AGREEING_INTENSIFIER)
+              for k in intensifiers]
+    role, clause = _role_and_clause(parsed, t.i)
+    if inverted_verb >= 0:
+        verb = toks[inverted_verb]
+        role = "nsubj"
+        clause = verb.head if verb.deprel in CLAUSE_FUNCTION_RELS else verb.i
+    if form.type == "possessive":
+        clause = _governing_clause(parsed, t.i)
+    if form.type == "personal":
+        marks += predicate_marks(sc, t.i, role, clause, zero=False)
+    return Mention(
+        id=f"{sc.prefix}{t.i}",
+        side=sc.side,
+        seg=sc.seg,
+        head=t.i,
+        tokens=(t.i,),
+        kind=MentionKind.PRONOUN,
+        text=t.text,
+        start=t.start,
+        end=t.end,
+        number=None if singular_they else form.number,
+        person=form.person,
+        pron_type=form.type,
+        role=role,
+        clause=clause,
+        key=pronoun_key(t.text),
+        marks=tuple(marks),
+        sent=t.sent,
+        animate=form.animate,
+        case=form.case,
+    )
+
+
+def zero_subject_mentions(sc: SegmentSide) -> list[Mention]:
+    """Zero subjects, in pro-drop languages only."""
+    return _zero_subjects(sc) if sc.rules.pro_drop else []
+
+
+Extractor = Callable[[SegmentSide], list[Mention]]
+# In this order: a name takes its words first, then nouns, then pronouns, so that no word makes two mentions.
+EXTRACTORS: tuple[Extractor, ...] = (name_mentions, noun_mentions, pronoun_mentions, zero_subject_mentions)
+
+
+SINGULAR_THEY_RULE = Rule.SINGULAR_THEY
+NEUTRAL_FORM_RULE = Rule.NEUTRAL_FORM
+# Relations in which a word the tagger did not call a pronoun still stands as one (UD; "pobj" is the English
+# parser's prepositional object, which has no UD counterpart of its shape).
 NEUTRAL_PRONOUN_RELS = {
     "nsubj",
     "nsubj:pass",
-    "nsubjpass",
     "obj",
-    "dobj",
     "iobj",
     "obl",
     "pobj",
     "nmod:poss",
-    "poss",
-    "dative",
     "root",
     "conj",
     "appos",
     "expl",
     "dep",
-    "npadvmod",
     "compound",
 }
 
 
 def _neutral_form(t: Token, rules: LanguageRules):
-    forms = [f for f in rules.pronoun(t.text) if f.gender == "neutral"]
-    poss = t.deprel in ("nmod:poss", "poss", "det", "compound")  # "zir years": before the possessed noun
+    forms = [f for f in rules.pronoun(t.text) if f.gender == Gender.NEUTRAL]
+    poss = t.deprel in ("nmod:poss", "det", "compound")  # "zir years": before the possessed noun
     return next((f for f in forms if (f.type == "possessive") == poss), forms[0] if forms else None)
 
 
@@ -430,8 +445,8 @@ def neutral_forms(parsed: ParsedText, rules: LanguageRules) -> list[tuple[int, i
     """
     toks, out = parsed.tokens, []
     for t in toks:
-        if any(f.gender == "neutral" for f in rules.pronoun(t.text)):
-            out.append((t.start, t.end, t.text, "neutral pronoun"))
+        if any(f.gender == Gender.NEUTRAL for f in rules.pronoun(t.text)):
+            out.append((t.start, t.end, t.text, NeutralRule.PRONOUN))
         elif _neutral_word(parsed, t, rules):
             a, b = t.start, t.start
             text = parsed.text
@@ -443,7 +458,7 @@ def neutral_forms(parsed: ParsedText, rules: LanguageRules) -> list[tuple[int, i
             continue
         a, b = toks[t.i - 1], toks[t.i + 1]
         if _counterparts(a.text.lower(), b.text.lower(), rules):
-            out.append((a.start, b.end, parsed.text[a.start : b.end], "doubled form"))
+            out.append((a.start, b.end, parsed.text[a.start : b.end], NeutralRule.DOUBLED))
     return sorted(out)
 
 
@@ -456,10 +471,10 @@ def _counterparts(a: str, b: str, rules: LanguageRules) -> bool:
         if rules.article_counterpart(x) == y:
             return True
         gx, gy = _form_gender(x, rules), _form_gender(y, rules)
-        if {gx, gy} == {"fem", "masc"} and not rules.noun_genders.get(x) and not rules.noun_genders.get(y):
+        if {gx, gy} == BINARY and not rules.noun_genders.get(x) and not rules.noun_genders.get(y):
             return True  # "los y las", "el o la": determiners of both genders
         entry = rules.noun_genders.get(x)
-        if entry and entry[0] == "masc" and entry[1] == y:
+        if entry and entry[0] == Gender.MASC and entry[1] == y:
             return True
         for m_end, f_end in (("os", "as"), ("o", "a"), ("s", "es"), ("", "e")):
             if len(x) > 3 and x.endswith(m_end) and y == x[: len(x) - len(m_end)] + f_end:
@@ -478,7 +493,7 @@ def singular_they_ok(m: Mention, chain: list[Mention], parses: list[ParsedText])
     """A 'they' mention is about one person when its chain holds a named or singular noun antecedent, no
     plural nominal subject and no coordinated persons stand between them (from the antecedent's sentence on),
     and (on the source side) the chain has no gendered pronoun of its own."""
-    antecedents = [c for c in chain if c.kind in ("name", "noun") and (c.seg, c.start) < (m.seg, m.start)]
+    antecedents = [c for c in chain if c.kind in NOMINAL_KINDS and (c.seg, c.start) < (m.seg, m.start)]
     if not antecedents:
         return False
     a = antecedents[-1]
@@ -487,14 +502,14 @@ def singular_they_ok(m: Mention, chain: list[Mention], parses: list[ParsedText])
             if (k, t.start) >= (m.seg, m.start) or (k == a.seg and t.sent < parses[k].tokens[a.head].sent):
                 continue  # from the antecedent's sentence up to the pronoun
             plural = t.upos in ("NOUN", "PROPN") and t.feat("Number") == "Plur"
-            if plural and t.deprel in ("nsubj", "nsubj:pass", "nsubjpass"):
+            if plural and t.deprel in SUBJECT_RELS:
                 return False  # "the engineers arrived": plural they is as likely
-            if plural and any(c.deprel in ("acl:relcl", "relcl") for c in parses[k].children(t.i)):
+            if plural and any(c.deprel in RELATIVE_CLAUSE_RELS for c in parses[k].children(t.i)):
                 return False  # "in photographs that looked as if they were old": they are the photographs
             if t.deprel == "conj" and t.upos in ("NOUN", "PROPN") and t.head == a.head and k == a.seg:
                 return False  # "Ana and Luis ... they"
     if m.side == "source" and any(
-        mk.kind == "pronoun" and mk.gender in ("fem", "masc") for c in chain for mk in c.marks
+        mk.kind == EvidenceKind.PRONOUN and mk.gender in BINARY for c in chain for mk in c.marks
     ):
         return False
     return True
@@ -555,9 +570,9 @@ def _demonstrative_speaker(parsed: ParsedText, t: Token, rules: LanguageRules) -
     return (
         t.upos == "PRON"
         and t.feat("PronType") == "Dem"
-        and t.gender in ("fem", "masc")
-        and not _is_plural(t)
-        and t.deprel in ("nsubj", "nsubj:pass")
+        and t.gender in BINARY
+        and not is_plural(t)
+        and t.deprel in SUBJECT_RELS
         and not t.is_root
         and parsed.tokens[t.head].lemma.lower() in rules.speech_verbs
     )
@@ -570,8 +585,8 @@ def _latter(parsed: ParsedText, t: Token, rules: LanguageRules) -> bool:
         t.text.lower() in rules.latter_words
         and t.upos in ("ADJ", "NOUN", "PRON")
         and not t.deprel.startswith(("amod", "det", "nmod", "compound"))
-        and t.gender in ("fem", "masc")
-        and not _is_plural(t)
+        and t.gender in BINARY
+        and not is_plural(t)
         and any(k.deprel == "det" and k.i < t.i and k.feat("PronType") == "Dem" for k in parsed.children(t.i))
     )
 
@@ -593,7 +608,7 @@ def _participle_after_clitic(parsed: ParsedText, t: Token) -> Token | None:
     if t.is_root or not t.deprel.startswith("obj") or t.head < t.i:
         return None
     head = parsed.tokens[t.head]
-    if head.participle and head.gender in ("fem", "masc") and not _is_plural(head):
+    if head.participle and head.gender in BINARY and not is_plural(head):
         return head
     return None
 
@@ -622,16 +637,6 @@ def _gender_doublet(parsed: ParsedText, t: Token, rules: LanguageRules) -> bool:
     return False
 
 
-def _article_form(tok: Token, rules: LanguageRules) -> str | None:
-    """The gender of an article form, unless the tagger shows the word is a bare preposition of the same
-    shape (Portuguese "a": "promovido a presidente"); a preposition fused with an article keeps its gender."""
-    g = rules.article_gender(tok.text)
-    if g is not None and tok.upos == "ADP" and not (tok.feat("AdpType") == "Preppron"
-                                                     or tok.feat("PronType") == "Art"):
-        return None
-    return g
-
-
 def _noun_modifier(parsed: ParsedText, t: Token, rules: LanguageRules) -> bool:
     """A person-noun form used as a modifier of the thing noun right before it, with no determiner of its own:
     French "la ligne directrice", "l'idée maîtresse", Spanish "la idea madre". It agrees with that noun and
@@ -651,16 +656,17 @@ def _noun_modifier(parsed: ParsedText, t: Token, rules: LanguageRules) -> bool:
         before.upos == "NOUN"
         and not rules.is_person_noun(before.text)
         and before.gender == t.gender
-        and not _is_plural(before)
+        and not is_plural(before)
         and not any(k.deprel.startswith("det") for k in parsed.children(t.i))
     )
 
 
-def _noun_mention(prefix, side, seg, t: Token, role: str, clause: int, key: str, marks) -> Mention:
+def _noun_mention(sc: SegmentSide, t: Token, role: str, clause: int, key: str, marks) -> Mention:
     """A singular person noun of one token."""
     return Mention(
-        id=f"{prefix}{t.i}", side=side, seg=seg, head=t.i, tokens=(t.i,), kind="noun", text=t.text, start=t.start,
-        end=t.end, number="sing", person="3", role=role, clause=clause, key=key, marks=tuple(marks), sent=t.sent,
+        id=f"{sc.prefix}{t.i}", side=sc.side, seg=sc.seg, head=t.i, tokens=(t.i,), kind=MentionKind.NOUN, text=t.text,
+        start=t.start, end=t.end, number="sing", person="3", role=role, clause=clause, key=key, marks=tuple(marks),
+        sent=t.sent,
     )
 
 
@@ -718,7 +724,7 @@ def _role_and_clause(parsed: ParsedText, i: int) -> tuple[str, int]:
         seen += 1
     if t.deprel in ("pobj", "agent") and not t.is_root:
         prep = parsed.tokens[t.head]
-        if prep.deprel in ("prep", "agent", "dative") and not prep.is_root:
+        if prep.deprel in ("prep", "agent") and not prep.is_root:
             return ("obl", prep.head)
     return t.deprel, (t.i if t.is_root else t.head)
 
@@ -760,190 +766,16 @@ def _title_noun_gender(form: str, rules: LanguageRules) -> str | None:
     if entry is None:
         return None
     gender = entry[0]
-    if gender == "fem" or (gender == "masc" and not rules.articles and form.lower() not in rules.generic_masculine):
+    if gender == Gender.FEM or (gender == Gender.MASC and not rules.articles
+                                and form.lower() not in rules.generic_masculine):
         return gender
     return None
 
 
-def _honorifics_before(parsed, head, ids, rules, side, seg, seg_id) -> list[EvidenceItem]:
-    marks = []
-    for c in parsed.children(head):
-        if c.i in ids:
-            continue
-        g = rules.honorific(c.text)
-        if g and c.deprel in ("compound", "flat", "flat:name", "appos", "nmod", "det", "amod") and c.i < head:
-            marks.append(_mark(side, seg, seg_id, c, g, "title", W_TITLE, "honorific"))
-    # "el señor García": the honorific may be the head with the name under it.
-    # Not across a coordination ("el señor Ruiz y la jefa Ana Gil": señor is not Ana Gil's title).
-    h = parsed.head_of(head)
-    if h is not None and h.i < head and rules.honorific(h.text) and parsed.tokens[head].deprel in (
-        "flat", "flat:name", "appos", "compound", "nmod", "nmod:appos"
-    ):
-        marks.append(_mark(side, seg, seg_id, h, rules.honorific(h.text), "title", W_TITLE, "honorific"))
-    return marks
-
-
-def _np_marks(parsed, head, rules, side, seg, seg_id, noun_form: bool) -> list[EvidenceItem]:
-    """Determiners and adjectives inside the noun phrase that agree with a person noun or name."""
-    if not rules.dependents:
-        return []
-    marks = []
-    for c in parsed.children(head):
-        if c.deprel == "case" and c.i < head and not _is_plural(c) and rules.article_gender(c.text):
-            # A preposition fused with the article ("del propio director", "au directeur") carries its gender;
-            # a bare preposition of the same form (Portuguese "a") does not (see _article_form).
-            g = _article_form(c, rules)
-            if g in ("fem", "masc") and c.upos == "ADP":
-                marks.append(_mark(side, seg, seg_id, c, g, "morphology", W_DETERMINER, "determiner agreement"))
-            continue
-        if c.deprel not in rules.dependents or _is_plural(c):
-            continue
-        if c.feat("Poss") == "Yes" or rules.pronoun(c.text) and c.upos == "PRON":
-            continue  # possessives agree with the possessed noun, not with the person (rules: possessed)
-        if c.deprel.startswith("det"):
-            g = rules.article_gender(c.text)
-            if g is None and c.upos == "DET":
-                g = c.gender  # any determiner agrees with its noun: articles, demonstratives, "propio", "otro"
-            if g in ("fem", "masc") and c.i < head:
-                marks.append(
-                    _mark(side, seg, seg_id, c, g, "morphology", W_DETERMINER, "determiner agreement")
-                )
-        elif c.upos in ("ADJ", "VERB") and c.gender in ("fem", "masc"):
-            lo, hi = sorted((c.i, head))
-            if any(parsed.tokens[j].upos in ("NOUN", "PROPN") for j in range(lo + 1, hi)):
-                continue  # a noun in between: the adjective more likely goes with that noun
-            if c.gender == "masc" and not noun_form:
-                continue  # an adjective on a bare name: too often an unrelated modifier
-            marks.append(
-                _mark(side, seg, seg_id, c, c.gender, "agreement", W_ADJECTIVE, "adjective agreement")
-            )
-    return marks
-
-
-def _partitive_gender(parsed, pred: Token, rules) -> str | None:
-    """The gender of a partitive predicate's head: a gendered article form ("una", "l'une"), or an indefinite
-    pronoun the tagger genders with a plural group under it (Spanish "uno de mis amigos": not an article)."""
-    g = rules.article_gender(pred.text)
-    if g is None and pred.upos == "PRON" and pred.feat("PronType") == "Ind" and any(
-        c.deprel.startswith(("nmod", "obl")) and _is_plural(c) for c in parsed.children(pred.i)
-    ):
-        g = pred.gender
-    return g if g in ("fem", "masc") else None
-
-
-def _predicate_marks(parsed, i, role, clause, rules, side, seg, seg_id, zero: bool) -> list[EvidenceItem]:
-    """Predicative adjectives, nouns and participles that agree with the subject of their clause."""
-    if role not in SUBJECT_RELS and not zero:
-        return []
-    if not rules.copulas and not rules.agreeing_aux:
-        return []
-    if clause < 0 or clause == i:
-        return []
-    pred = parsed.tokens[clause]
-    marks = []
-    kids = parsed.children(clause)
-    aux_lemmas = {k.lemma.lower() for k in kids if k.deprel in ("aux", "aux:pass", "aux:tense", "cop")}
-    has_cop = any(k.deprel == "cop" for k in kids)
-    has_pass = any(k.deprel == "aux:pass" for k in kids)
-
-    def add(tok: Token, rule: str) -> None:
-        if not tok.text[:1].isalpha():
-            return  # a misparse made punctuation the predicate
-        g = tok.gender
-        if tok.upos in ("ADJ", "VERB") and rules.endings:
-            matched, by_ending = rules.ending_gender(tok.text)
-            if matched:
-                g = by_ending
-        if g not in ("fem", "masc") or _is_plural(tok):
-            return
-        if tok.upos in ("NOUN", "PROPN"):
-            if not rules.is_person_noun(tok.text):
-                return  # "es un problema": a thing's grammatical gender
-            ng = rules.noun_counterpart(tok.text)[0]
-            if ng not in ("fem", "masc"):
-                return
-            g = ng
-            if g == "masc" and tok.text.lower() in rules.generic_masculine:
-                marks.append(
-                    _mark(side, seg, seg_id, tok, g, "lexical", W_UNMARKED_NOUN, "generic masculine noun")
-                )
-                return
-        weight = W_ZERO_MASC_PREDICATE if zero and g == "masc" else W_PREDICATE
-        marks.append(_mark(side, seg, seg_id, tok, g, "agreement", weight, rule))
-
-    if has_cop and pred.upos in ("ADJ", "NOUN", "VERB"):
-        add(pred, "predicative with copula")
-    elif has_cop and pred.upos in ("PRON", "NUM", "DET") and (g := _partitive_gender(parsed, pred, rules)):
-        # Partitive predicates agree with the subject: "es una de las pocas pilotos", "l'une des rares",
-        # "es uno de mis amigos".
-        marks.append(_mark(side, seg, seg_id, pred, g, "agreement", W_PREDICATE, "predicative with copula"))
-    elif pred.upos in ("VERB", "ADJ") and pred.participle:
-        # An agreeing auxiliary makes the participle agree even under a compound tense ("ha sido elegida",
-        # "a été élue"); with only the compound-tense auxiliary it is invariable ("ha operado", "a opéré").
-        if has_pass or aux_lemmas & rules.agreeing_aux:
-            add(pred, "participle with agreeing auxiliary")
-    # A copula that is itself a participle agrees where its auxiliary makes participles agree: Italian "è
-    # stata gentile" (essere takes essere: the participle agrees with the subject), not Spanish "ha sido".
-    if has_cop:
-        for k in kids:
-            if (
-                k.deprel == "cop"
-                and k.participle
-                and any(a.deprel in ("aux", "aux:pass") and a.lemma.lower() in rules.agreeing_aux
-                        for a in kids)
-            ):
-                add(k, "participle with agreeing auxiliary")
-    # Coordinated predicates agree with the same subject ("cansada pero muy satisfecha").
-    if marks and pred.upos in ("ADJ", "VERB"):
-        for k in kids:
-            if (
-                k.deprel == "conj"
-                and k.upos in ("ADJ", "VERB")
-                and (k.upos == "ADJ" or k.participle)
-            ):
-                add(k, "predicative with copula")
-    # Secondary predicates ("quedó sorprendida", "se mostró convencida", "declaró emocionada"): an adjective
-    # hanging on the verb itself describes the subject, unless the verb has a nominal object it could describe.
-    if pred.lemma.lower() in rules.copulas:
-        for k in kids:
-            if (
-                k.deprel == "xcomp"
-                and k.upos in ("ADJ", "VERB")
-                and (k.upos == "ADJ" or k.participle)
-            ):
-                add(k, "secondary predicate")
-    elif pred.upos == "VERB" and not any(
-        k.deprel in ("obj", "iobj") and k.upos in ("NOUN", "PROPN", "PRON") for k in kids
-    ):
-        for k in kids:
-            if (
-                k.upos == "ADJ"
-                and k.deprel in ("xcomp", "advcl", "obj", "conj", "dep", "obl")
-                and not rules.is_person_noun(k.text)
-                # An adjective with its own determiner is a noun; with its own subject or copula it heads a
-                # clause of its own ("« Je suis désolé », dit-elle").
-                and not any(d.deprel == "det" or d.deprel == "cop" or d.deprel.startswith("nsubj")
-                            for d in parsed.children(k.i))
-            ):
-                add(k, "secondary predicate")
-    # A participle heading a non-finite adjunct or complement with no subject of its own, under an agreeing
-    # auxiliary, agrees with the subject that controls it ("dopo essersi offerto", "après être arrivée", "tras
-    # ser elegida").
-    for k in kids:
-        if k.deprel not in ("advcl", "xcomp") or not k.participle:
-            continue
-        own = parsed.children(k.i)
-        auxes = [d for d in own if d.deprel in ("aux", "aux:pass", "aux:tense")]
-        if (auxes and not any(d.finite for d in auxes)
-                and any(d.lemma.lower() in rules.agreeing_aux for d in auxes)
-                and not any(d.deprel.startswith("nsubj") for d in own)):
-            add(k, "participle of a controlled clause")
-    return marks
-
-
-def _zero_subjects(parsed, seg, seg_id, side, rules, prefix, quoted=frozenset()) -> list[Mention]:
+def _zero_subjects(sc: SegmentSide) -> list[Mention]:
     """Finite 3rd-person singular clauses with no overt subject (pro-drop languages), and 1st-person singular
     ones inside quotations (the speaker: "«Estoy cansada», dijo")."""
+    parsed, rules, quoted = sc.parsed, sc.rules, sc.quoted
     out = []
     toks = parsed.tokens
     for t in toks:
@@ -964,22 +796,22 @@ def _zero_subjects(parsed, seg, seg_id, side, rules, prefix, quoted=frozenset())
         person = finite.feat("Person")
         if person != "3" and not (person == "1" and finite.i in quoted):
             continue
-        if any(k.deprel in SUBJECT_LIKE for k in kids):
+        if any(k.deprel in SUBJECT_LIKE_RELS for k in kids):
             continue
         lemma = (finite.lemma if finite is t else t.lemma).lower()
-        if lemma in ("haber", "hacer") and finite is t:
+        if lemma in rules.subjectless_verbs and finite is t:
             continue  # existential "hay", weather "hace frío": no subject at all
         if any(k.text.lower() == "se" and k.deprel != "obj" for k in kids):
             continue  # impersonal or passive "se": the clause has no person subject
-        marks = _predicate_marks(parsed, -1, "nsubj", t.i, rules, side, seg, seg_id, zero=True)
+        marks = predicate_marks(sc, -1, "nsubj", t.i, zero=True)
         out.append(
             Mention(
-                id=f"{prefix}z{t.i}",
-                side=side,
-                seg=seg,
+                id=f"{sc.prefix}z{t.i}",
+                side=sc.side,
+                seg=sc.seg,
                 head=t.i,
                 tokens=(finite.i,),
-                kind="zero",
+                kind=MentionKind.ZERO,
                 text=finite.text,
                 start=finite.start,
                 end=finite.end,

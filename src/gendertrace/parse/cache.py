@@ -25,7 +25,7 @@ from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 from pathlib import Path
 
-from gendertrace import __version__
+from gendertrace._version import __version__
 from gendertrace.model import ParsedText, Token
 from gendertrace.parse.base import Parser
 

@@ -1,4 +1,4 @@
-"""Scoring results read back for review: the results JSONL (DESIGN.md, "Contracts") joined with the input.
+"""Scoring results read back for review: the results JSONL (docs/design.md, "Contracts") joined with the input.
 
 Only what the review needs is kept. Every finding gets a stable id ("f<document>-<finding>", 1-based, in
 results order) that the HTML report, the CSV and the XLIFF notes share, so a post-editor can cross-reference

@@ -80,6 +80,9 @@ class LanguageRules:
     speech_verbs: frozenset[str] = frozenset()
     # Adjectives that, nominalised after a demonstrative, take up an earlier referent ("cette dernière").
     latter_words: frozenset[str] = frozenset()
+    # Verbs (lemmas) whose finite forms have no subject at all where none is written (existential "hay",
+    # weather "hace frío"): they make no zero-subject mention.
+    subjectless_verbs: frozenset[str] = frozenset()
     expletive_pronouns: frozenset[str] = frozenset()
     expletive_verbs: frozenset[str] = frozenset()
     expletive_clausal_verbs: frozenset[str] = frozenset()
@@ -171,80 +174,76 @@ TOP_KEYS = {
     "thing_pronouns",
     "speech_verbs",
     "latter_words",
+    "subjectless_verbs",
     "neutral_language",
 }
 
 
-def parse_rules(data: Any, path: Path) -> LanguageRules:
-    """Validate a loaded rules document and build LanguageRules; errors name the file and the key."""
-    if not isinstance(data, dict):
-        raise _fail(path, "(top)", f"expected a mapping, found {type(data).__name__}")
-    unknown = set(data) - TOP_KEYS
-    if unknown:
-        raise _fail(path, sorted(unknown)[0], f"unknown key (expected one of {', '.join(sorted(TOP_KEYS))})")
-    lang = _require(data, "language", str, path)
-    name = _require(data, "name", str, path)
-    pro_drop = _require(data, "pro_drop", bool, path)
-    poss = _require(data, "possessive_agrees_with", str, path)
-    if poss not in ("possessor", "possessed"):
-        raise _fail(path, "possessive_agrees_with", f"expected 'possessor' or 'possessed', found {poss!r}")
-
+def _pronouns(data: dict, path: Path) -> dict[str, tuple[PronounForm, ...]]:
+    """`pronouns`: each listed form, validated, by its lower-cased form."""
     pronouns: dict[str, list[PronounForm]] = {}
     for k, item in enumerate(_require(data, "pronouns", list, path)):
-        where = f"pronouns[{k}]"
-        if not isinstance(item, dict):
-            raise _fail(path, where, f"expected a mapping, found {item!r}")
-        extra = set(item) - {
-            "form",
-            "gender",
-            "number",
-            "type",
-            "case",
-            "animate",
-            "person",
-            "singular_neutral",
-            "stressed",
-        }
-        if extra:
-            raise _fail(path, f"{where}.{sorted(extra)[0]}", "unknown key")
-        form = _require(item, "form", str, path, where + ".")
-        gender = item.get("gender")
-        if gender not in GENDER_VALUES:
-            raise _fail(path, f"{where}.gender", f"expected fem, masc, neutral or null, found {gender!r}")
-        number = item.get("number")
-        if number not in NUMBER_VALUES:
-            raise _fail(path, f"{where}.number", f"expected sing, plur or null, found {number!r}")
-        ptype = _require(item, "type", str, path, where + ".")
-        if ptype not in PRONOUN_TYPES:
-            raise _fail(path, f"{where}.type", f"expected one of {sorted(PRONOUN_TYPES)}, found {ptype!r}")
-        if item.get("case") not in CASE_VALUES:
-            raise _fail(
-                path,
-                f"{where}.case",
-                f"expected one of nom, acc, dat, gen or null, found {item.get('case')!r}",
-            )
-        animate = item.get("animate", True)
-        if not isinstance(animate, bool):
-            raise _fail(path, f"{where}.animate", f"expected true or false, found {animate!r}")
-        person = str(item.get("person", 3))
-        if person not in ("1", "3"):
-            raise _fail(path, f"{where}.person", f"expected 1 or 3, found {item.get('person')!r}")
-        singular_neutral = item.get("singular_neutral", False)
-        if not isinstance(singular_neutral, bool) or (singular_neutral and number != "plur"):
-            raise _fail(
-                path,
-                f"{where}.singular_neutral",
-                f"expected true or false on a plural form, found {singular_neutral!r}",
-            )
-        stressed = item.get("stressed")
-        if stressed not in (None, "fem", "masc") or (stressed and gender is not None):
-            raise _fail(path, f"{where}.stressed", f"expected fem or masc on a form without gender, found {stressed!r}")
-        pronouns.setdefault(form.lower(), []).append(
-            PronounForm(
-                form.lower(), gender, number, ptype, item.get("case"), animate, person, singular_neutral, stressed
-            )
-        )
+        form = _pronoun_form(item, f"pronouns[{k}]", path)
+        pronouns.setdefault(form.form, []).append(form)
+    return {k: tuple(v) for k, v in pronouns.items()}
 
+
+def _pronoun_form(item: Any, where: str, path: Path) -> PronounForm:
+    """One entry of `pronouns`, validated."""
+    if not isinstance(item, dict):
+        raise _fail(path, where, f"expected a mapping, found {item!r}")
+    extra = set(item) - {
+        "form",
+        "gender",
+        "number",
+        "type",
+        "case",
+        "animate",
+        "person",
+        "singular_neutral",
+        "stressed",
+    }
+    if extra:
+        raise _fail(path, f"{where}.{sorted(extra)[0]}", "unknown key")
+    form = _require(item, "form", str, path, where + ".")
+    gender = item.get("gender")
+    if gender not in GENDER_VALUES:
+        raise _fail(path, f"{where}.gender", f"expected fem, masc, neutral or null, found {gender!r}")
+    number = item.get("number")
+    if number not in NUMBER_VALUES:
+        raise _fail(path, f"{where}.number", f"expected sing, plur or null, found {number!r}")
+    ptype = _require(item, "type", str, path, where + ".")
+    if ptype not in PRONOUN_TYPES:
+        raise _fail(path, f"{where}.type", f"expected one of {sorted(PRONOUN_TYPES)}, found {ptype!r}")
+    if item.get("case") not in CASE_VALUES:
+        raise _fail(
+            path,
+            f"{where}.case",
+            f"expected one of nom, acc, dat, gen or null, found {item.get('case')!r}",
+        )
+    animate = item.get("animate", True)
+    if not isinstance(animate, bool):
+        raise _fail(path, f"{where}.animate", f"expected true or false, found {animate!r}")
+    person = str(item.get("person", 3))
+    if person not in ("1", "3"):
+        raise _fail(path, f"{where}.person", f"expected 1 or 3, found {item.get('person')!r}")
+    singular_neutral = item.get("singular_neutral", False)
+    if not isinstance(singular_neutral, bool) or (singular_neutral and number != "plur"):
+        raise _fail(
+            path,
+            f"{where}.singular_neutral",
+            f"expected true or false on a plural form, found {singular_neutral!r}",
+        )
+    stressed = item.get("stressed")
+    if stressed not in (None, "fem", "masc") or (stressed and gender is not None):
+        raise _fail(path, f"{where}.stressed", f"expected fem or masc on a form without gender, found {stressed!r}")
+    return PronounForm(
+        form.lower(), gender, number, ptype, item.get("case"), animate, person, singular_neutral, stressed
+    )
+
+
+def _honorifics(data: dict, path: Path) -> dict[str, str]:
+    """`honorifics`: form (lower case, no final dot) -> gender."""
     honorifics: dict[str, str] = {}
     hon = _require(data, "honorifics", dict, path)
     for gender in hon:
@@ -253,6 +252,11 @@ def parse_rules(data: Any, path: Path) -> LanguageRules:
         for form in _str_list(hon, gender, path, "honorifics."):
             honorifics[form.lower().rstrip(".")] = gender
 
+    return honorifics
+
+
+def _articles(data: dict, path: Path) -> dict[str, tuple[str | None, str | None]]:
+    """`articles`: form -> (gender, counterpart)."""
     articles: dict[str, tuple[str | None, str | None]] = {}
     for form, spec in _require(data, "articles", dict, path).items():
         where = f"articles.{form}"
@@ -260,6 +264,11 @@ def parse_rules(data: Any, path: Path) -> LanguageRules:
             raise _fail(path, where, f"expected {{gender: fem|masc|null, counterpart: form}}, found {spec!r}")
         articles[str(form).lower()] = (spec.get("gender"), spec.get("counterpart"))
 
+    return articles
+
+
+def _agreement(data: dict, path: Path) -> tuple[list[tuple[str, str | None]], dict[str, frozenset[str]]]:
+    """`agreement`: the endings, and the lists of relations, copulas and auxiliaries."""
     agreement = _require(data, "agreement", dict, path)
     endings = []
     for k, item in enumerate(agreement.get("endings", [])):
@@ -286,6 +295,12 @@ def parse_rules(data: Any, path: Path) -> LanguageRules:
         for k in ("dependents", "copulas", "agreeing_aux", "passive_aux", "invariable_aux")
     }
 
+    return endings, lists
+
+
+def _person_nouns(data: dict, path: Path) -> tuple[dict[str, tuple[str, str]], frozenset[str], frozenset[str]]:
+    """`person_nouns`: form -> (gender or common/epicene, counterpart), the generic masculines, the title-only
+    forms."""
     nouns = _require(data, "person_nouns", dict, path)
     noun_genders: dict[str, tuple[str, str]] = {}
     for k, pair in enumerate(_require(nouns, "pairs", list, path, "person_nouns.")):
@@ -309,6 +324,11 @@ def parse_rules(data: Any, path: Path) -> LanguageRules:
     for form in _str_list({"epicene": [], **nouns}, "epicene", path, "person_nouns."):
         noun_genders[form.lower()] = ("epicene", form.lower())
 
+    return noun_genders, generic, title_only
+
+
+def _expletives(data: dict, path: Path) -> tuple[dict[str, frozenset[str]], bool]:
+    """`expletives`: the word lists and whether a copular clause with a clausal subject is impersonal."""
     expl = data.get(
         "expletives",
         {"pronouns": [], "verbs": [], "clausal_verbs": [], "clitics": [], "copular_clause": False},
@@ -323,6 +343,29 @@ def parse_rules(data: Any, path: Path) -> LanguageRules:
     }
     copular_clause = _require(expl, "copular_clause", bool, path, "expletives.")
 
+    return expl_lists, copular_clause
+
+
+def parse_rules(data: Any, path: Path) -> LanguageRules:
+    """Validate a loaded rules document and build LanguageRules; errors name the file and the key."""
+    if not isinstance(data, dict):
+        raise _fail(path, "(top)", f"expected a mapping, found {type(data).__name__}")
+    unknown = set(data) - TOP_KEYS
+    if unknown:
+        raise _fail(path, sorted(unknown)[0], f"unknown key (expected one of {', '.join(sorted(TOP_KEYS))})")
+    lang = _require(data, "language", str, path)
+    name = _require(data, "name", str, path)
+    pro_drop = _require(data, "pro_drop", bool, path)
+    poss = _require(data, "possessive_agrees_with", str, path)
+    if poss not in ("possessor", "possessed"):
+        raise _fail(path, "possessive_agrees_with", f"expected 'possessor' or 'possessed', found {poss!r}")
+
+    pronouns = _pronouns(data, path)
+    honorifics = _honorifics(data, path)
+    articles = _articles(data, path)
+    endings, lists = _agreement(data, path)
+    noun_genders, generic, title_only = _person_nouns(data, path)
+    expl_lists, copular_clause = _expletives(data, path)
     neutral_words, conjunctions, midpoints = _neutral_language(data.get("neutral_language", {}), path)
     plural_endings = tuple(
         w.lower()
@@ -336,7 +379,7 @@ def parse_rules(data: Any, path: Path) -> LanguageRules:
         path=str(path),
         pro_drop=pro_drop,
         possessive_agrees_with=poss,
-        pronouns={k: tuple(v) for k, v in pronouns.items()},
+        pronouns=pronouns,
         honorifics=honorifics,
         articles=articles,
         noun_genders=noun_genders,
@@ -348,6 +391,7 @@ def parse_rules(data: Any, path: Path) -> LanguageRules:
         thing_pronouns=_optional_words(data, "thing_pronouns", path),
         speech_verbs=_optional_words(data, "speech_verbs", path),
         latter_words=_optional_words(data, "latter_words", path),
+        subjectless_verbs=_optional_words(data, "subjectless_verbs", path),
         expletive_pronouns=expl_lists["pronouns"],
         expletive_verbs=expl_lists["verbs"],
         expletive_clausal_verbs=expl_lists["clausal_verbs"],

@@ -16,9 +16,9 @@ from gendertrace.parse.cache import CachedParser, ParseCache, known_signature
 from gendertrace.parse.spacy_backend import expect_languages
 from gendertrace.pipeline import Scorer, ScoreSettings
 from gendertrace.scale.priors import make_aligner
+from gendertrace.settings import DEFAULT_BATCH_DOCS, DEFAULT_MIN_CONFIDENCE
 
 ALIGN_MODES: tuple[str, ...] = ("sampled", "frozen")
-DEFAULT_BATCH_DOCS = 500
 
 
 @dataclass(frozen=True)
@@ -27,7 +27,7 @@ class ScoringPlan:
 
     src_lang: str
     tgt_lang: str
-    min_confidence: float = 0.5
+    min_confidence: float = DEFAULT_MIN_CONFIDENCE
     parser: str = "spacy"
     src_model: str | None = None
     tgt_model: str | None = None

@@ -1,0 +1,83 @@
+"""Coreference sieves on hand-built parses: chains, and each mention's attachment as attributes."""
+
+from __future__ import annotations
+
+from gendertrace.coref.sieves import SIEVES, CorefState, exact_names, resolve_chains
+from gendertrace.mentions.extract import extract_mentions
+from gendertrace.model import Mention
+from gendertrace.rules import load_rules
+from gendertrace.settings import WEIGHTS
+from handparse import ES_NAME, ES_TIRED, parse
+
+ES = load_rules("es")
+ES_SPOKE = ("Ana Ruiz habló .", """
+1 Ana Ana PROPN _ 3 nsubj NE=PER
+2 Ruiz Ruiz PROPN _ 1 flat NE=PER
+3 habló hablar VERB Mood=Ind|Number=Sing|Person=3|Tense=Past|VerbForm=Fin 0 root
+4 . . PUNCT _ 3 punct
+""")
+
+
+def _side(*sentences):
+    parses = [parse("es", text, rows) for text, rows in sentences]
+    mentions = [m for k, p in enumerate(parses) for m in extract_mentions(p, k, str(k + 1), "source", ES)]
+    return mentions, parses
+
+
+def _chains(res) -> list[list[str]]:
+    return [[m.text for m in c.mentions] for c in res.chains]
+
+
+def test_sieves_run_from_the_most_precise():
+    assert [s.__name__ for s in SIEVES] == [
+        "exact_names", "structure", "role_markers", "partial_names", "coordinated_subjects", "role_noun_heads",
+        "quoted_speakers", "pronouns"]
+
+
+def test_the_same_name_twice_is_one_chain():
+    ms, ps = _side(ES_NAME, ES_SPOKE)
+    res = resolve_chains(ms, ps, "source", use_gender=True)
+    assert _chains(res) == [["Ana Ruiz", "Ana Ruiz"]]
+    assert [m.chain for m in res.chains[0].mentions] == ["S1", "S1"]
+
+
+def test_a_zero_subject_takes_the_name_before_it_less_surely_one_segment_on():
+    ms, ps = _side(ES_NAME, ES_TIRED)
+    res = resolve_chains(ms, ps, "source", use_gender=True)
+    assert _chains(res) == [["Ana Ruiz", "Estaba"]]
+    name, zero = res.chains[0].mentions
+    assert (zero.chain, zero.antecedent) == ("S1", name.id)
+    # One segment back: the weights file's distance certainty for a distance of one.
+    assert zero.certainty == WEIGHTS.coreference.distance_certainty[1] == 0.9
+    assert (name.antecedent, name.certainty) == ("", 1.0)
+    assert res.certainty == {zero.id: 0.9} and res.chain_of[zero.id] == "S1"  # the tables are views of them
+
+
+def test_a_sieve_is_one_function_and_one_line():
+    ms, ps = _side(ES_NAME, ES_TIRED)
+    # Without the pronoun sieve the zero subject starts a chain of its own.
+    assert _chains(resolve_chains(ms, ps, "source", True, sieves=(exact_names,))) == [["Ana Ruiz"], ["Estaba"]]
+
+    def zero_to_last_name(st: CorefState) -> None:
+        """A zero subject opening a segment is the last person named in the segment before."""
+        for m in st.mentions:
+            before: list[Mention] = [c for c in st.in_segment(m.seg - 1) if c.kind == "name"]
+            if m.kind == "zero" and before and st.join(before[-1], m):
+                st.attach(m, before[-1], 1.0)
+
+    res = resolve_chains(ms, ps, "source", True, sieves=(exact_names, zero_to_last_name))
+    assert _chains(res) == [["Ana Ruiz", "Estaba"]]
+    assert res.chains[0].mentions[1].certainty == 1.0
+
+
+def test_a_plural_noun_is_no_antecedent_for_a_singular_zero_subject():
+    # Mentions are of one person; agreement in number with an antecedent (common practice, no source).
+    ms, ps = _side(("Las ingenieras llegaron .", """
+1 Las el DET Definite=Def|Gender=Fem|Number=Plur|PronType=Art 2 det
+2 ingenieras ingeniero NOUN Gender=Fem|Number=Plur 3 nsubj
+3 llegaron llegar VERB Mood=Ind|Number=Plur|Person=3|Tense=Past|VerbForm=Fin 0 root
+4 . . PUNCT _ 3 punct
+"""), ES_TIRED)
+    # A plural noun makes no mention (mentions are of one person), so the zero subject has no antecedent.
+    res = resolve_chains(ms, ps, "source", use_gender=True)
+    assert _chains(res) == [["Estaba"]] and res.chains[0].mentions[0].antecedent == ""
