@@ -296,6 +296,7 @@ class Finding:
     evidence: tuple[EvidenceItem, ...]
     message: str = ""
     seg: int = 0
+    mention: str = ""  # id of the target mention the flagged words belong to
 
     def to_json(self) -> dict:
         return {
@@ -345,6 +346,7 @@ class DocumentResult:
     stats: DocumentStats
     chains: tuple[Chain, ...] = ()
     skipped: str = ""  # why the document was not scored, when it was not
+    links: Mapping[str, Link] = field(default_factory=dict)  # target mention id -> its link to a source chain
 
     def to_json(self) -> dict:
         out = {

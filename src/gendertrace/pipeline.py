@@ -203,7 +203,7 @@ class Scorer:
         entities = [replace(e, checked=per_entity.get(e.id, (0, 0))[0], consistent=per_entity.get(e.id, (0, 0))[1])
                     for e in entities]
         return DocumentResult(doc.doc_id, self.src_lang, self.tgt_lang, tuple(entities), tuple(findings), stats,
-                              tuple(src_res.chains) + tuple(tgt_res.chains))
+                              tuple(src_res.chains) + tuple(tgt_res.chains), links=links)
 
 
 def _chains_with_singular_they(mentions, parses, side, use_gender, rules):

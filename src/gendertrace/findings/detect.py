@@ -441,4 +441,5 @@ def _finding(
         evidence=tuple(support),
         message=msg,
         seg=r.seg,
+        mention=r.mention.id,
     )
