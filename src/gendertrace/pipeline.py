@@ -19,6 +19,7 @@ from gendertrace.mentions.extract import SINGULAR_THEY_RULE, extract_mentions, n
 from gendertrace.model import Document, DocumentResult, ParsedDocument, ParsedText
 from gendertrace.parse.base import Parser, get_parser
 from gendertrace.parse.spacy_backend import expect_languages
+from gendertrace.results import aligned_source_words
 from gendertrace.rules import LanguageRules, load_lexicon, load_rules, rules_digest
 
 
@@ -203,7 +204,8 @@ class Scorer:
         entities = [replace(e, checked=per_entity.get(e.id, (0, 0))[0], consistent=per_entity.get(e.id, (0, 0))[1])
                     for e in entities]
         return DocumentResult(doc.doc_id, self.src_lang, self.tgt_lang, tuple(entities), tuple(findings), stats,
-                              tuple(src_res.chains) + tuple(tgt_res.chains), links=links)
+                              tuple(src_res.chains) + tuple(tgt_res.chains), links=links,
+                              aligned=aligned_source_words(tgt_mentions, pd.source, alignments))
 
 
 def _chains_with_singular_they(mentions, parses, side, use_gender, rules):
