@@ -17,11 +17,11 @@ from collections.abc import Callable, Iterable, Iterator
 from dataclasses import dataclass, field
 from pathlib import Path
 
-from gendertrace.api import Summary
 from gendertrace.errors import GendertraceError, InputError
 from gendertrace.io.readers import iter_documents, read_corpus, untranslated_in
 from gendertrace.model import Document
 from gendertrace.pipeline import Scorer
+from gendertrace.results import Summary
 from gendertrace.scale.executors import DaskExecutor, InlineExecutor, ProcessExecutor
 from gendertrace.scale.plan import ScoringPlan, scorer_for
 from gendertrace.scale.priors import PriorCounts
