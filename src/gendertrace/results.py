@@ -446,10 +446,8 @@ def _document(path: str, line: int, obj: dict) -> ResultDocument:
     doc_id = str(_require(path, line, obj, "doc_id", str))
     raw_findings = _require(path, line, obj, "findings", list)
     findings = tuple(_finding(path, line, k, doc_id, f) for k, f in enumerate(raw_findings, 1))
+    stats = _require(path, line, obj, "stats", dict)
     entities = tuple(_entity(path, line, e) for e in obj.get("entities") or [])
-    stats = obj.get("stats") or {}
-    if not isinstance(stats, dict):
-        raise InputError(path, line, f"'stats' must be an object, found {type(stats).__name__}")
     counts = stats.get("findings") or {}
     summary = Summary(
         documents=1, segments=int(stats.get("segments", 0)), entities=int(stats.get("entities", len(entities))),
