@@ -89,7 +89,11 @@ class ReviewFinding:
 
     def source_summary(self) -> str:
         """'su' (segment 4), or '' when the flagged word is linked to the person only indirectly."""
-        return "" if self.source is None else f"'{self.source.text}' (segment {self.source.seg_id})"
+        if self.source is None:
+            return ""
+        where = f"'{self.source.text}' (segment {self.source.seg_id})"
+        # A zero subject is located at its verb: the word translated is the subject the verb implies.
+        return f"the unexpressed subject of {where}" if self.source.kind == "zero" else where
 
     @property
     def direct(self) -> bool:
