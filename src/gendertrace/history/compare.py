@@ -276,6 +276,11 @@ def signature_line(signature: dict) -> str:
 def render(c: Comparison, threshold: float = DEFAULT_THRESHOLD, alpha: float = DEFAULT_ALPHA) -> str:
     lines: list[str] = []
     few = c.documents < FEW_DOCUMENTS
+    if c.differences:
+        lines.append("WARNING: the runs were scored with different settings; the comparison was forced")
+        lines.append("WARNING: and its numbers mix a change of engine with a change of the checker:")
+        lines += [f"WARNING:   {d}" for d in describe_differences(c.differences, c.a.name, c.b.name)]
+        lines.append("")
     if few:
         lines.append(f"NOTE: only {c.documents} documents: intervals are coarse, and the resampling p-values "
                      f"below (bootstrap, randomization) are unreliable; read the findings lists instead")
@@ -289,11 +294,6 @@ def render(c: Comparison, threshold: float = DEFAULT_THRESHOLD, alpha: float = D
             lines.append(f"decisions on {label}'s findings: {j.accepted} accepted, {j.rejected} rejected; "
                          f"precision of judged findings {_r(j.precision)}")
     if c.diff is not None or c.judged_a is not None or c.judged_b is not None:
-        lines.append("")
-    if c.differences:
-        lines.append("WARNING: the runs were scored with different settings; the comparison was forced")
-        lines.append("WARNING: and its numbers mix a change of engine with a change of the checker:")
-        lines += [f"WARNING:   {d}" for d in describe_differences(c.differences, c.a.name, c.b.name)]
         lines.append("")
     lines.append(f"A = {c.a.name}  (recorded {c.a.recorded_at[:19]})")
     lines.append(f"B = {c.b.name}  (recorded {c.b.recorded_at[:19]})")
