@@ -5,8 +5,10 @@ number of findings: a finding carries only its decisive evidence (the marks of t
 word is linked through first, then the heaviest others, at most DECISIVE_ITEMS) and `evidence_total`, the
 size of the full list; the full evidence is its entity's `evidence`, written once. Target mentions carry
 their link (method, confidence, and the source mention it goes through); a finding names its target mention
-and the aligned source word (`source`). Lines without `schema` are version 1 (every finding repeats its full
-evidence); they read the same way, without links.
+and the aligned source word (`source`: the link's source mention, basis "link"; for a link without one, the
+source words the aligner pairs the mention with, basis "alignment"; else the person's only mention in the
+same source segment, basis "segment"). Lines without `schema` are
+version 1 (every finding repeats its full evidence); they read the same way, without links.
 
 The contract fields of every line: doc_id, src_lang, tgt_lang, entities, findings (kind, seg_id, start, end,
 text, expected, found, entity, confidence, evidence items with side, seg_id, start, end, text), stats.
@@ -139,6 +141,7 @@ def document_json(r: DocumentResult) -> dict:
     for f in r.findings:
         seg_ids.setdefault(f.seg, f.seg_id)
     source_by_id = {m.id: m for ent in r.entities for m in ent.source_mentions}
+    entity_by_id = {ent.id: ent for ent in r.entities}
     entities = []
     for ent in r.entities:
         targets = []
@@ -164,19 +167,33 @@ def document_json(r: DocumentResult) -> dict:
     for f in r.findings:
         link = r.links.get(f.mention) if f.mention else None
         via = source_by_id.get(link.via) if link is not None and link.via else None
+        basis, span = "link", None
+        if via is not None:
+            span = (via.seg, via.start, via.end, via.text, via.kind)
+        elif f.mention in r.aligned:
+            # No link through a source mention (a chain link): the source words the aligner pairs it with.
+            seg, start, end, text = r.aligned[f.mention]
+            basis, span = "alignment", (seg, start, end, text, "")
+        elif f.entity in entity_by_id:
+            # Nor aligned: the person's only mention in the same source segment is the word it stands for.
+            here = [m for m in entity_by_id[f.entity].source_mentions if m.seg == f.seg]
+            if len(here) == 1:
+                basis, span = "segment", (here[0].seg, here[0].start, here[0].end, here[0].text, here[0].kind)
+        decisive = decisive_evidence(f, via)
         row = {
             "kind": f.kind, "seg_id": f.seg_id, "start": f.start, "end": f.end, "text": f.text,
             "expected": f.expected, "found": f.found, "entity": f.entity, "confidence": round(f.confidence, 3),
-            "message": f.message, "evidence": [_evidence_json(e) for e in decisive_evidence(f, via)],
-            "evidence_total": len(f.evidence),
+            "message": f.message, "evidence": [_evidence_json(e) for e in decisive],
+            "evidence_total": len(set(f.evidence) | set(decisive)),
         }
         if f.mention:
             row["mention"] = f.mention
         if link is not None:
             row["link"] = {"method": link.method, "confidence": round(link.confidence, 3)}
-        if via is not None:
-            row["source"] = {"seg": via.seg, "seg_id": f.seg_id if via.seg == f.seg else seg_ids.get(via.seg, ""),
-                             "start": via.start, "end": via.end, "text": via.text, "kind": via.kind}
+        if span is not None:
+            seg, start, end, text, kind = span
+            row["source"] = {"seg": seg, "seg_id": f.seg_id if seg == f.seg else seg_ids.get(seg, ""),
+                             "start": start, "end": end, "text": text, "kind": kind, "basis": basis}
         findings.append(row)
     out = {"schema": SCHEMA_VERSION, "doc_id": r.doc_id, "src_lang": r.src_lang, "tgt_lang": r.tgt_lang,
            "entities": entities, "findings": findings, "stats": r.stats.to_json()}
@@ -269,6 +286,7 @@ class ResultSpan:
     text: str
     kind: str = ""
     seg: int = -1
+    basis: str = "link"  # link (the link goes through it), alignment (the aligner pairs them), segment
 
 
 @dataclass(frozen=True)
@@ -428,7 +446,8 @@ def _finding(path: str, line: int, k: int, doc_id: str, f: object) -> ResultFind
     source = None
     if isinstance(src, dict):
         source = ResultSpan(str(src.get("seg_id", "")), int(src["start"]), int(src["end"]),
-                            str(src.get("text", "")), str(src.get("kind", "")), int(src.get("seg", -1)))
+                            str(src.get("text", "")), str(src.get("kind", "")), int(src.get("seg", -1)),
+                            str(src.get("basis", "link")))
     return ResultFinding(
         kind=str(f["kind"]), seg_id=str(f["seg_id"]), start=int(f["start"]), end=int(f["end"]), text=str(f["text"]),
         expected=f.get("expected"), found=f.get("found"), entity=str(f.get("entity", "")),

@@ -54,6 +54,8 @@ def _suggest(text, found, expected, lang, after, rules, nouns) -> str | None:
     pieces = [(m.start(), m.end()) for m in _WORD.finditer(text)]
     if not pieces:
         return None
+    # The group's noun is the person's noun mention when it is among the words, else its last word.
+    named_noun = any(text[a:b].lower() in nouns for a, b in pieces)
     out, last, changed = [], 0, False
     for k, (a, b) in enumerate(pieces):
         word = text[a:b]
@@ -61,7 +63,7 @@ def _suggest(text, found, expected, lang, after, rules, nouns) -> str | None:
         if not any(ch.isalpha() for ch in word):
             new = word
         else:
-            noun = word.lower() in nouns or (len(pieces) > 1 and k == len(pieces) - 1)
+            noun = word.lower() in nouns if named_noun else len(pieces) > 1 and k == len(pieces) - 1
             new = _word(word, found, expected, rules, nxt, final=k == len(pieces) - 1, noun=noun)
             if new is None:
                 return None

@@ -38,6 +38,13 @@ def test_suggestions_follow_the_handbook(text, found, expected, lang, after, wan
     assert suggest(text, found, expected, lang, after) == want
 
 
+def test_the_person_noun_is_known_by_its_mention_and_a_following_adjective_agrees():
+    # Spanish adjectives mostly follow the noun and agree with it (Nueva gramática, from memory).
+    assert suggest("El presidente electo", "masc", "fem", "es", nouns=frozenset({"presidente"})) == \
+        "La presidenta electa"
+    assert suggest("El presidente electo", "masc", "fem", "es") is None  # without it "electo" is read as the noun
+
+
 @pytest.mark.parametrize("text, found, expected, lang", [
     ("her", "fem", "masc", "en"),  # "him" or "his": the paradigm offers two, the words do not choose
     ("elle", "fem", "masc", "fr"),  # "il" or "lui" (subject or stressed)

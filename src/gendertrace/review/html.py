@@ -31,7 +31,7 @@ from importlib import resources
 
 from gendertrace import __version__
 from gendertrace.model import FINDING_KINDS
-from gendertrace.review.results import ReviewDocument, ReviewEvidence, ReviewFinding
+from gendertrace.review.results import LINK_WORDS, ReviewDocument, ReviewEvidence, ReviewFinding
 
 # The report's colours, all of them: the stylesheet uses only these (as CSS custom properties), and
 # tests/review/test_review_contrast.py checks the contrast of every pair the stylesheet puts together.
@@ -510,11 +510,18 @@ def _detail(v: _DocumentView, f: ReviewFinding) -> str:
         s = f.source
         ref = v.evidence_ids.get(("source", s.seg_id, s.start, s.end, SOURCE_WORD_KIND, None))
         attr = f' data-evidence-ref="{ref}"' if ref else ""
+        how = LINK_WORDS.get(f.link.method, f.link.method) if f.link else ""
+        if s.basis == "alignment":
+            how = "paired by the word aligner" + (f"; linked {how}" if how else "")
+        elif s.basis == "segment":
+            how = "the person's one word in this source segment" + (f"; linked {how}" if how else "")
+        elif s.kind == "zero":
+            how = "the unexpressed subject of this verb" + (f"; {how}" if how else "")
         translates = (f'<dd class="translates"{attr}><span class="evword">{esc(s.text)}</span> '
-                      f'<span class="sub">source, segment {esc(s.seg_id)}'
-                      f'{", " + esc(f.link.method) if f.link else ""}</span></dd>')
+                      f'<span class="sub">source, segment {esc(s.seg_id)}{", " + esc(how) if how else ""}'
+                      "</span></dd>")
     else:
-        how = f" ({esc(f.link.method)})" if f.link else ""
+        how = f" ({esc(LINK_WORDS.get(f.link.method, f.link.method))})" if f.link else ""
         translates = f'<dd class="translates sub">no source word: linked to this person indirectly{how}</dd>'
     fix = (f'<dd class="suggestion">{esc(f.suggestion)}</dd>' if f.suggestion else
            '<dd class="suggestion sub">none: the rules cannot build one here</dd>')

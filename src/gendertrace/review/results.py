@@ -189,7 +189,7 @@ def _finding(r: ResultDocument, fid: str, f, segments: Sequence[Segment], seg_id
     source = f.source
     if source is not None and not source.seg_id:
         source = ResultSpan(_seg_id(source, seg_ids), source.start, source.end, source.text, source.kind,
-                            source.seg)
+                            source.seg, source.basis)
     seg = next((s for s in segments if s.seg_id == f.seg_id), None)
     suggestion = None
     if f.kind != "assumption" and seg is not None and seg.target[f.start : f.end] == f.text:
