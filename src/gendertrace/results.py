@@ -273,7 +273,11 @@ class ResultEntity:
     declared: tuple[str, ...] = ()
 
     def source_mention(self, mention_id: str) -> ResultMention | None:
-        return next((m for m in self.source_mentions if m.id == mention_id), None)
+        index = self.__dict__.get("_by_id")
+        if index is None:  # built once: every target mention of a long document looks its source up here
+            index = {m.id: m for m in self.source_mentions}
+            object.__setattr__(self, "_by_id", index)
+        return index.get(mention_id)
 
 
 @dataclass(frozen=True)

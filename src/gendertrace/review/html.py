@@ -190,6 +190,8 @@ class _DocumentView:
                     self.evidence_ids[key] = eid
                     self.evidence.append(_EvidenceMark(eid, e))
         self.unlocated = {f.id for f in doc.mismatches()}
+        self.numbers = {f.id: k for k, f in enumerate(doc.findings, 1)}
+        self.names: dict[str, str] = {}  # entity id -> how the panel names the person, worked out once
 
     def evidence_of(self, f: ReviewFinding) -> list[str]:
         return list(dict.fromkeys(self.evidence_ids[(*e.key, e.kind, e.gender)] for e in shown_evidence(f)))
@@ -202,7 +204,7 @@ class _DocumentView:
         return text[e.start : e.end] == e.text
 
     def number_of(self, f: ReviewFinding) -> int:
-        return self.doc.findings.index(f) + 1
+        return self.numbers[f.id]
 
 
 def render_report(documents: Sequence[ReviewDocument], title: str = "Gender consistency review",
@@ -404,12 +406,17 @@ def _document(v: _DocumentView) -> str:
                      "input that was scored?); they are listed below but not highlighted.")
     warn = "".join(f'<p class="warning" role="note"><strong>Note:</strong> {n}</p>' for n in notes)
     rows = []
+    marks_at: dict[str, list[_EvidenceMark]] = {}
+    for m in v.evidence:
+        marks_at.setdefault(m.item.seg_id, []).append(m)
+    findings_at: dict[str, list[ReviewFinding]] = {}
+    for f in d.findings:
+        findings_at.setdefault(f.seg_id, []).append(f)
     for k, seg in enumerate(d.segments, 1):
-        here = [m for m in v.evidence if m.item.seg_id == seg.seg_id and v.evidence_located(m.item)]
+        here = [m for m in marks_at.get(seg.seg_id, ()) if v.evidence_located(m.item)]
         src_spans = [_evidence_span(m) for m in here if m.item.side == "source"]
         tgt_spans = [_evidence_span(m) for m in here if m.item.side == "target"]
-        tgt_spans += [_finding_span(v, f) for f in d.findings
-                      if f.seg_id == seg.seg_id and f.id not in v.unlocated]
+        tgt_spans += [_finding_span(v, f) for f in findings_at.get(seg.seg_id, ()) if f.id not in v.unlocated]
         target = (render_marked(seg.target, tgt_spans) if seg.target.strip()
                   else '<span class="untranslated">(untranslated)</span>')
         rows.append(
@@ -495,7 +502,9 @@ def _person(v: _DocumentView, f: ReviewFinding) -> str:
 def _detail(v: _DocumentView, f: ReviewFinding) -> str:
     sym = KIND_SYMBOL.get(f.kind, OTHER_SYMBOL)
     person = f.entity_label or f.entity or "–"
-    named = person_name_of(f)
+    if f.entity not in v.names:
+        v.names[f.entity] = person_name_of(f)
+    named = v.names[f.entity]
     if f.entity:
         person = f"{named} ({f.entity})"
     evidence = [_evidence_item(v, e) for e in f.evidence]

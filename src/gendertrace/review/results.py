@@ -120,7 +120,13 @@ class ReviewDocument:
     line: int = 0  # line of the results file
 
     def segment(self, seg_id: str) -> Segment | None:
-        return next((s for s in self.segments if s.seg_id == seg_id), None)
+        index = self.__dict__.get("_by_seg_id")
+        if index is None:  # built once: a long document is looked up once per finding and evidence word
+            index = {}
+            for s in self.segments:
+                index.setdefault(s.seg_id, s)
+            object.__setattr__(self, "_by_seg_id", index)
+        return index.get(seg_id)
 
     def count(self, kind: str) -> int:
         return sum(1 for f in self.findings if f.kind == kind)
@@ -146,7 +152,12 @@ def review_document(r: ResultDocument, number: int, doc: Document | None) -> Rev
     seg_ids = [s.seg_id for s in segments]
     # Built once per person and shared by the person's findings, so memory grows with the text.
     mentions = {e.id: _mentions(e, seg_ids) for e in r.entities}
-    findings = tuple(_finding(r, f"f{number}-{k}", f, segments, seg_ids, mentions)
+    names = {e.id: person_name(e) for e in r.entities}
+    by_seg_id: dict[str, Segment] = {}
+    for s in segments:
+        by_seg_id.setdefault(s.seg_id, s)
+    entities = {e.id: e for e in r.entities}
+    findings = tuple(_finding(r, f"f{number}-{k}", f, by_seg_id, seg_ids, mentions, names, entities)
                      for k, f in enumerate(r.findings, 1))
     return ReviewDocument(r.doc_id, r.src_lang, r.tgt_lang, findings, r.stats, segments, r.skipped, r.line)
 
@@ -183,14 +194,15 @@ def _mentions(entity: ResultEntity | None, seg_ids: Sequence[str]) -> tuple[Link
     return tuple(out)
 
 
-def _finding(r: ResultDocument, fid: str, f, segments: Sequence[Segment], seg_ids: Sequence[str],
-             mentions: dict[str, tuple[LinkedMention, ...]]) -> ReviewFinding:
-    entity = r.entity(f.entity)
+def _finding(r: ResultDocument, fid: str, f, segments: dict[str, Segment], seg_ids: Sequence[str],
+             mentions: dict[str, tuple[LinkedMention, ...]], names: dict[str, str],
+             entities: dict[str, ResultEntity]) -> ReviewFinding:
+    entity = entities.get(f.entity)
     source = f.source
     if source is not None and not source.seg_id:
         source = ResultSpan(_seg_id(source, seg_ids), source.start, source.end, source.text, source.kind,
                             source.seg, source.basis)
-    seg = next((s for s in segments if s.seg_id == f.seg_id), None)
+    seg = segments.get(f.seg_id)
     suggestion = None
     if f.kind != "assumption" and seg is not None and seg.target[f.start : f.end] == f.text:
         nouns = frozenset(m.text.lower() for m in (entity.target_mentions if entity else ())
@@ -205,7 +217,7 @@ def _finding(r: ResultDocument, fid: str, f, segments: Sequence[Segment], seg_id
         evidence_total=f.evidence_total,
         scorer_message=f.message,
     )
-    return _with_message(out, person_name(entity, f.entity))
+    return _with_message(out, names.get(f.entity) or person_name(entity, f.entity))
 
 
 def _with_message(f: ReviewFinding, person: str) -> ReviewFinding:
