@@ -125,13 +125,16 @@ def aligned_source_words(mentions: Sequence[Mention], source: Sequence[ParsedTex
 
 
 def decisive_evidence(f: Finding, via: Mention | None) -> list[EvidenceItem]:
-    """The finding's evidence worth carrying: the aligned source word's marks first, then the heaviest."""
+    """The finding's evidence worth carrying: a declaration first (it outranks all other evidence), then the
+    aligned source word's marks, then the heaviest of the rest."""
+    declared = [e for e in f.evidence if e.kind == "declared"]
     own = [e for e in f.evidence if via is not None and e.side == "source" and e.seg_id == f.seg_id
-           and via.start <= e.start and e.end <= via.end]
+           and via.start <= e.start and e.end <= via.end and e not in declared]
     if via is not None:
-        own += [m for m in via.marks if m not in own]
-    rest = sorted((e for e in f.evidence if e not in own), key=lambda e: -e.weight)
-    return (own + rest)[:max(DECISIVE_ITEMS, len(own))]
+        own += [m for m in via.marks if m not in own and m not in declared]
+    first = declared + own
+    rest = sorted((e for e in f.evidence if e not in first), key=lambda e: -e.weight)
+    return (first + rest)[:max(DECISIVE_ITEMS, len(first))]
 
 
 def document_json(r: DocumentResult) -> dict:
