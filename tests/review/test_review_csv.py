@@ -88,3 +88,15 @@ def test_finding_the_input_does_not_hold_is_marked_alone(tmp_path):
     out = tmp_path / "f.csv"
     write_csv(documents(tmp_path, results=results), out)
     assert read_rows(out)[0]["target"] == "⟦He⟧"
+
+
+def test_the_csv_carries_the_suggested_form_and_empty_decision_columns(tmp_path):
+    out = tmp_path / "f.csv"
+    write_csv(documents(tmp_path), out)
+    rows = read_rows(out)
+    assert list(rows[0])[-2:] == ["decision", "comment"]
+    # English "He" for a person the source makes feminine is "She" (a reference grammar of English, from memory);
+    # an assumption or an inconsistency has no expected gender, so no suggestion.
+    assert [(r["kind"], r["suggestion"]) for r in rows] == [("contradiction", "She"), ("assumption", ""),
+                                                            ("inconsistency", "")]
+    assert all(r["decision"] == r["comment"] == "" for r in rows)

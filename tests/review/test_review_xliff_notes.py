@@ -123,6 +123,10 @@ def test_xliff12_notes_land_on_their_units_as_an_independent_parser_reads_them(t
     assert "Check the pronoun." in new.units[1].getnotes(origin="reviewer")
     assert [(u.getid(), u.source, u.target) for u in new.units] == [(u.getid(), u.source, u.target)
                                                                      for u in old.units]
+    # The contradiction's note carries the corrected form ("He" for a woman: "She"); the inconsistency,
+    # which has no expected gender, none.
+    assert "Suggested form: 'She'." in notes["harbour-note\x04t2"].split("inconsistency")[0]
+    assert notes["harbour-note\x04t2"].count("Suggested form") == 1
     # Markup in a message arrives as text (XML escaping), not as elements.
     assert "'He' makes Ilune <Garaikoa> & more masc" in notes["harbour-note\x04t2"]
 
