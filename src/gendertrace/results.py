@@ -110,15 +110,25 @@ def _mention_json(m: Mention, seg_ids: Mapping[int, str]) -> dict:
 
 def aligned_source_words(mentions: Sequence[Mention], source: Sequence[ParsedText],
                          alignments: Sequence) -> dict[str, tuple[int, int, int, str]]:
-    """Per target mention, the contiguous source words the word aligner pairs it with (none when scattered)."""
+    """Per target mention, the contiguous source words the word aligner pairs it with (none when scattered).
+
+    A subject the aligner pairs with nothing stands, in a pro-drop source, for the unexpressed subject of the
+    source verb its own verb is paired with: that verb, when it has no subject of its own, is the word.
+    """
     out = {}
     for m in mentions:
+        if m.seg >= len(source):
+            continue
         pairs = alignments[m.seg] if m.seg < len(alignments) else ()
+        parsed = source[m.seg]
         wanted = set(m.tokens)
         found = sorted({i for i, j in pairs if j in wanted})
-        if not found or found[-1] - found[0] + 1 != len(found) or m.seg >= len(source):
+        if not found and m.role in ("nsubj", "nsubj:pass") and m.clause >= 0:
+            verbs = sorted({i for i, j in pairs if j == m.clause and parsed.tokens[i].upos in ("VERB", "AUX")
+                            and not any(c.deprel.startswith("nsubj") for c in parsed.children(i))})
+            found = verbs if len(verbs) == 1 else []
+        if not found or found[-1] - found[0] + 1 != len(found):
             continue
-        parsed = source[m.seg]
         start, end = parsed.tokens[found[0]].start, parsed.tokens[found[-1]].end
         out[m.id] = (m.seg, start, end, parsed.text[start:end])
     return out
