@@ -21,6 +21,7 @@ from gendertrace.model import (
     ParsedText,
     Side,
 )
+from gendertrace.results import aligned_source_words
 from gendertrace.rules import LanguageRules
 
 if TYPE_CHECKING:
@@ -98,7 +99,8 @@ class Analysis:
         assert self.stats is not None, "the findings stage has not run"
         return DocumentResult(self.document.doc_id, c.src_lang, c.tgt_lang, tuple(self.entities),
                               tuple(self.findings), self.stats, tuple(self.source.chains) + tuple(self.target.chains),
-                              links=dict(self.links))
+                              links=dict(self.links),
+                              aligned=aligned_source_words(self.target.mentions, self.source.parses, self.alignments))
 
 
 # A stage reads the analysis and writes its part of it; the scorer runs its stages in order.

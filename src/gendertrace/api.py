@@ -2,80 +2,16 @@
 
 from __future__ import annotations
 
-import json
-from collections.abc import Iterable
-from dataclasses import dataclass, field
 from pathlib import Path
 from typing import TYPE_CHECKING
 
-from gendertrace.model import Document, DocumentResult, DocumentStats
+from gendertrace.model import Document, DocumentResult
 from gendertrace.pipeline import Scorer
+from gendertrace.results import Summary, write_results
 
 if TYPE_CHECKING:
     from gendertrace.scale.plan import ScoringPlan
     from gendertrace.scale.run import RunReport
-
-
-@dataclass
-class Summary:
-    """Corpus totals, aggregated from per-document statistics."""
-
-    documents: int = 0
-    segments: int = 0
-    untranslated: int = 0
-    entities: int = 0
-    target_references: int = 0
-    checked: int = 0
-    consistent: int = 0
-    findings: dict[str, int] = field(
-        default_factory=lambda: {"contradiction": 0, "inconsistency": 0, "assumption": 0}
-    )
-
-    def add(self, r: DocumentResult) -> None:
-        self.add_stats(r.stats)
-
-    def add_stats(self, s: DocumentStats) -> None:
-        """Count one document from its statistics alone (what a worker process sends back)."""
-        self.documents += 1
-        self.segments += s.segments
-        self.entities += s.entities
-        self.target_references += s.target_references
-        self.checked += s.checked
-        self.consistent += s.consistent
-        for k, v in s.findings.items():
-            self.findings[k] = self.findings.get(k, 0) + v
-
-    @property
-    def rate(self) -> float | None:
-        """Consistent over checked gendered target references; None when nothing could be checked."""
-        return self.consistent / self.checked if self.checked else None
-
-    def table(self) -> str:
-        rate = "n/a (nothing checkable)" if self.rate is None else f"{self.rate:.3f}"
-        rows = [
-            ("documents", str(self.documents)),
-            ("segments", f"{self.segments} ({self.untranslated} untranslated, skipped)"),
-            ("entities", str(self.entities)),
-            ("gendered target references", str(self.target_references)),
-            ("checked against evidence", str(self.checked)),
-            ("consistent", str(self.consistent)),
-            ("contradiction findings", str(self.findings.get("contradiction", 0))),
-            ("inconsistency findings", str(self.findings.get("inconsistency", 0))),
-            ("assumption findings", str(self.findings.get("assumption", 0))),
-            ("consistency rate", rate),
-        ]
-        width = max(len(k) for k, _ in rows)
-        return "\n".join(f"{k:<{width}}  {v}" for k, v in rows)
-
-
-def write_results(results: Iterable[DocumentResult], out) -> Summary:
-    """Write one JSON object per document to the open text stream `out`, returning the totals."""
-    summary = Summary()
-    for r in results:
-        out.write(json.dumps(r.to_json(), ensure_ascii=False) + "\n")
-        out.flush()
-        summary.add(r)
-    return summary
 
 
 def score_documents(scorer: Scorer, docs: list[Document], progress: bool = False) -> list[DocumentResult]:
@@ -185,3 +121,6 @@ def explain_document(scorer: Scorer, doc: Document) -> str:
     lines += ["", f"checked {s.checked} of {s.target_references} gendered target references; "
                   f"{s.consistent} consistent"]
     return "\n".join(lines)
+
+
+__all__ = ["Summary", "explain_document", "score_documents", "score_file", "score_file_report", "write_results"]

@@ -7,11 +7,12 @@ from collections import defaultdict
 from dataclasses import dataclass
 from pathlib import Path
 
-from gendertrace.api import Summary, score_file
+from gendertrace.api import score_file
 from gendertrace.declared.sheet import load_entity_sheet
 from gendertrace.errors import InputError
 from gendertrace.io.outputs import staged_file
 from gendertrace.pipeline import Scorer, ScoreSettings
+from gendertrace.results import Summary, read_results
 
 
 def demo_dir() -> Path:
@@ -94,7 +95,6 @@ def _fmt(x: float | None) -> str:
 
 def run_demo(out: Path, corpus: Path | None = None) -> str:
     """Score each demo file into OUT/<file>.jsonl; return a printable report (summaries and gold agreement)."""
-    import json
 
     corpus = corpus or demo_dir()
     files = sorted(corpus.glob("*-*.v*.tsv"))
@@ -124,13 +124,11 @@ def run_demo(out: Path, corpus: Path | None = None) -> str:
             f"{path.name:<14} {s.documents:>4} {s.checked:>7} {s.consistent:>10} {rate:>6} "
             f"{s.findings['contradiction']:>6} {s.findings['inconsistency']:>6} {s.findings['assumption']:>5}"
         )
-        with open(res_path, encoding="utf-8") as f:
-            for line in f:
-                doc = json.loads(line)
-                for fd in doc["findings"]:
-                    row = (path.name, doc["doc_id"], fd["seg_id"], fd["kind"], fd["start"], fd["end"])
-                    system.append(row)
-                    by_direction[direction].append(row)
+        for doc in read_results(res_path):
+            for fd in doc.findings:
+                row = (path.name, doc.doc_id, fd.seg_id, fd.kind, fd.start, fd.end)
+                system.append(row)
+                by_direction[direction].append(row)
     if gold:
         lines += ["", "agreement with the reviewers' gold (contradiction findings; all engine versions):", ""]
         lines.append(f"{'direction':<10} {'gold':>5} {'found':>6} {'precision':>9} {'recall':>7}")

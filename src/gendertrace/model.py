@@ -374,16 +374,11 @@ class DocumentResult:
     skipped: str = ""  # why the document was not scored, when it was not
     # Target mention id -> its link to a source chain (method, confidence, the source mention it goes through).
     links: Mapping[str, Link] = field(default_factory=dict, compare=False)
+    # target mention id -> (segment index, start, end, text) of the source words the aligner pairs it with
+    aligned: Mapping[str, tuple[int, int, int, str]] = field(default_factory=dict, compare=False)
 
     def to_json(self) -> dict:
-        out = {
-            "doc_id": self.doc_id,
-            "src_lang": self.src_lang,
-            "tgt_lang": self.tgt_lang,
-            "entities": [e.to_json() for e in self.entities],
-            "findings": [f.to_json() for f in self.findings],
-            "stats": self.stats.to_json(),
-        }
-        if self.skipped:
-            out["skipped"] = self.skipped
-        return out
+        """The results line; the format is owned by gendertrace.results."""
+        from gendertrace.results import document_json
+
+        return document_json(self)

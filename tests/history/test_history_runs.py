@@ -109,7 +109,7 @@ def test_a_broken_results_line_is_named(tmp_path):
     path = write_results(tmp_path / "r.jsonl", simple_docs([(1, 1)]))
     with open(path, "a", encoding="utf-8") as f:
         f.write('{"doc_id": "x", "entities": []}\n')
-    with pytest.raises(InputError, match=r"r\.jsonl:2: not a gendertrace result: missing key 'stats'"):
+    with pytest.raises(InputError, match=r"r\.jsonl:2: results object has no 'findings'"):
         load_run(path)
 
 

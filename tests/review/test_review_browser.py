@@ -108,10 +108,13 @@ def test_clicking_a_highlight_shows_the_finding_and_its_evidence(page):
     # Its evidence words light up in the segments, each with its kind written beside it.
     lit = [e for e in css(driver, ".ev.is-evidence") if e.is_displayed()]
     wanted = {(e["side"], e["seg_id"], e["start"], e["end"]) for e in findings[k]["evidence"]}
+    source = findings[k].get("source")
+    if source:  # the source word it is linked through lights up too, labelled as such
+        wanted.add(("source", source["seg_id"], source["start"], source["end"]))
     assert len(lit) == len(wanted)
     labels = [e.find_element("css selector", ".evlabel") for e in lit]
     assert all(label.is_displayed() for label in labels)
-    kinds = {e["kind"] for e in findings[k]["evidence"]}
+    kinds = {e["kind"] for e in findings[k]["evidence"]} | ({"translated word"} if source else set())
     assert {label.text.split(" · ")[0] for label in labels} == kinds
     assert {e.find_element("xpath", "ancestor::td").get_attribute("class") for e in lit} <= {"src", "tgt"}
     # Nothing else is lit.
@@ -138,7 +141,7 @@ def test_minimum_confidence_hides_weaker_findings(page):
     slider = css(driver, "#min-confidence")[0]
     slider.click()
     slider.send_keys(Keys.HOME)
-    for _ in range(14):  # 14 steps of 0.05 = 0.70
+    for _ in range(70):  # 70 steps of 0.01 = 0.70
         slider.send_keys(Keys.ARROW_RIGHT)
     assert css(driver, "#min-confidence-value")[0].text == "0.70"
     strong = sum(1 for f in findings if f["confidence"] >= 0.7)
@@ -199,7 +202,7 @@ def test_hostile_text_stays_text_in_the_browser(browser, tmp_path):
     evil = '<img src=x onerror="document.title=\'pwned\'"><script>document.title="pwned"</script>'
     inp = write_tsv(tmp_path / "in.tsv", [("d", "1", f"La jueza {evil} habló.", f"He spoke {evil}.")])
     flagged = finding("1", 0, 2, "He", message=evil, evidence_items=[evidence("source", "1", 3, 8, "jueza")])
-    res = write_jsonl(tmp_path / "res.jsonl", [result("d", [flagged])])
+    res = write_jsonl(tmp_path / "res.jsonl", [result("d", [flagged], labels={"E1": evil})])
     page = tmp_path / "r.html"
     page.write_text(render_report(load_review(res, read_corpus(inp)), title="hostile"), encoding="utf-8")
     browser.get(page.as_uri())

@@ -45,6 +45,7 @@ TEXT_PAIRS = [
     ("masthead-ink", "masthead"), ("masthead-muted", "masthead"),
     ("evidence-ink", "evidence-bg"), ("ink", "evidence-bg"), ("evidence-ink", "surface"),
     ("warning-ink", "warning-bg"),
+    ("source-ink", "source-bg"), ("ink", "source-bg"),  # the translated source word and its label
     ("print-ink", "print-paper"),
     *((f"{k}-ink", f"{k}-bg") for k in KINDS),  # kind symbols and chips
     *(("ink", f"{k}-bg") for k in KINDS),  # the flagged words themselves
@@ -54,6 +55,7 @@ NON_TEXT_PAIRS = [
     *((f"{k}-line", "surface") for k in KINDS),  # the underline of a highlight, against the page below it
     *((f"{k}-line", f"{k}-bg") for k in KINDS),  # and against the highlight above it
     ("evidence-line", "surface"), ("evidence-line", "evidence-bg"),
+    ("source-line", "surface"), ("source-line", "source-bg"),
     ("focus", "surface"), ("focus", "paper"), *(("focus", f"{k}-bg") for k in KINDS),
     ("accent", "surface"),  # checkbox, slider and button borders
 ]

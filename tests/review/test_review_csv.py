@@ -62,12 +62,12 @@ def test_cells_that_a_spreadsheet_would_evaluate_are_neutralised(tmp_path):
     rows = [("d", "1", "La jueza habló.", '=HYPERLINK("x") he said.'),
             ("d", "2", "Ella rió.", "-He laughed.")]
     at = rows[0][3].index(" he ") + 1
-    results = [result("d", [finding("1", at, at + 2, "he", message="+1 for him"), finding("2", 1, 3, "He")])]
+    results = [result("d", [finding("1", at, at + 2, "he"), finding("2", 1, 3, "He")], labels={"E1": "+1 for him"})]
     out = tmp_path / "f.csv"
     write_csv(documents(tmp_path, rows, results), out)
     got = read_rows(out)
     assert got[0]["target"] == "'=HYPERLINK(\"x\") ⟦he⟧ said."
-    assert got[0]["message"] == "'+1 for him"
+    assert got[0]["person"] == "'+1 for him (E1)"
     assert got[1]["target"] == "'-⟦He⟧ laughed."
     assert got[1]["flagged"] == "He"
 
@@ -75,12 +75,12 @@ def test_cells_that_a_spreadsheet_would_evaluate_are_neutralised(tmp_path):
 def test_multiline_and_quoted_text_survives_the_round_trip(tmp_path):
     rows = [("d", "1", "La jueza habló.", 'She said "no", then he left')]
     at = rows[0][3].index(" he ") + 1
-    results = [result("d", [finding("1", at, at + 2, "he", message='line one\nline "two", three')])]
+    results = [result("d", [finding("1", at, at + 2, "he")], labels={"E1": 'line one\nline "two", three'})]
     out = tmp_path / "f.csv"
     write_csv(documents(tmp_path, rows, results), out)
     (got,) = read_rows(out)
     assert got["target"] == 'She said "no", then ⟦he⟧ left'
-    assert got["message"] == 'line one\nline "two", three'
+    assert got["person"] == 'line one\nline "two", three (E1)'
 
 
 def test_finding_the_input_does_not_hold_is_marked_alone(tmp_path):
@@ -88,3 +88,15 @@ def test_finding_the_input_does_not_hold_is_marked_alone(tmp_path):
     out = tmp_path / "f.csv"
     write_csv(documents(tmp_path, results=results), out)
     assert read_rows(out)[0]["target"] == "⟦He⟧"
+
+
+def test_the_csv_carries_the_suggested_form_and_empty_decision_columns(tmp_path):
+    out = tmp_path / "f.csv"
+    write_csv(documents(tmp_path), out)
+    rows = read_rows(out)
+    assert list(rows[0])[-2:] == ["decision", "comment"]
+    # English "He" for a person the source makes feminine is "She" (a reference grammar of English, from memory);
+    # an assumption or an inconsistency has no expected gender, so no suggestion.
+    assert [(r["kind"], r["suggestion"]) for r in rows] == [("contradiction", "She"), ("assumption", ""),
+                                                            ("inconsistency", "")]
+    assert all(r["decision"] == r["comment"] == "" for r in rows)

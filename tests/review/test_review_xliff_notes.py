@@ -25,10 +25,10 @@ NS20 = "urn:oasis:names:tc:xliff:document:2.0"  # XLIFF 2.0 specification, secti
 
 RESULTS12 = [
     result("harbour-note", [
-        finding("t2", 0, 2, "He", message="'He' makes Ilune Garaikoa masc; the source says <fem> & more"),
+        finding("t2", 0, 2, "He"),
         finding("t1", 0, 7, "Captain", kind="assumption", expected=None, found="masc", confidence=0.4),
         finding("t2", 7, 16, "exhausted", kind="inconsistency", expected=None, found="masc"),
-    ]),
+    ], labels={"E1": "Ilune <Garaikoa> & more"}),
     result("ward-note", [finding("t1", 18, 21, "she", expected="masc", found="fem")]),
 ]
 RESULTS20 = [result("clinic-memo", [finding("u1/s2", 5, 7, "he"), finding("u2", 16, 19, "him")])]
@@ -123,8 +123,12 @@ def test_xliff12_notes_land_on_their_units_as_an_independent_parser_reads_them(t
     assert "Check the pronoun." in new.units[1].getnotes(origin="reviewer")
     assert [(u.getid(), u.source, u.target) for u in new.units] == [(u.getid(), u.source, u.target)
                                                                      for u in old.units]
+    # The contradiction's note carries the corrected form ("He" for a woman: "She"); the inconsistency,
+    # which has no expected gender, none.
+    assert "Suggested form: 'She'." in notes["harbour-note\x04t2"].split("inconsistency")[0]
+    assert notes["harbour-note\x04t2"].count("Suggested form") == 1
     # Markup in a message arrives as text (XML escaping), not as elements.
-    assert "the source says <fem> & more" in notes["harbour-note\x04t2"]
+    assert "'He' makes Ilune <Garaikoa> & more masc" in notes["harbour-note\x04t2"]
 
 
 def test_xliff12_note_follows_the_target_as_the_content_model_requires(tmp_path):

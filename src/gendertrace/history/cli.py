@@ -80,14 +80,18 @@ def history() -> None:
 @click.option("--keep-incomplete", is_flag=True,
               help="Record a run whose signature says it is incomplete (killed, or failed before its last "
                    "document) as it is; `list` and `compare` then mark it incomplete.")
+@click.option("--decisions", "decisions_path", default=None, type=click.Path(exists=True, dir_okay=False),
+              help="The post-editor's decisions on these results: the report's exported decisions file or the "
+                   "findings CSV with its decision and comment columns filled in.")
 @_db_option
-def record(results, engine, version, input_path, fmt, replace, keep_incomplete, db):
+def record(results, engine, version, input_path, fmt, replace, keep_incomplete, decisions_path, db):
     """Store RESULTS.jsonl (and its RESULTS.jsonl.signature.json) as run ENGINE:VERSION.
 
     The whole run is written in one transaction: its signature, per-document statistics, findings, per-entity
     data and, with --input, the segment texts. An incomplete run (the partial OUT.part of a run that was
     killed or failed) is refused unless --keep-incomplete is given.
     """
+    from gendertrace.history import judged
     from gendertrace.history.runs import load_run
 
     if ":" in engine or not engine.strip():
@@ -96,10 +100,13 @@ def record(results, engine, version, input_path, fmt, replace, keep_incomplete, 
     try:
         check_outputs([("--db", _store_file(db))],
                       [("RESULTS.jsonl", results), ("its signature", f"{results}.signature.json"),
-                       ("--input", input_path)])
+                       ("--input", input_path), ("--decisions", decisions_path)])
         run = load_run(results, input_path, fmt, keep_incomplete=keep_incomplete)
+        words = judged.finding_words(results)
+        decisions = judged.judged_decisions(decisions_path, words) if decisions_path else []
         with _open(db, create=True) as store:
             info = store.record(run, engine, version, replace=replace)
+            judged.save(store, info.id, words, decisions)
             where = store.display_url
     except GendertraceError as exc:
         _fail(exc)
@@ -108,6 +115,10 @@ def record(results, engine, version, input_path, fmt, replace, keep_incomplete, 
     state = " (incomplete run, kept as it is)" if info.incomplete else ""
     click.echo(f"recorded {info.name}{state}: {info.documents} documents, {info.consistent}/{info.checked} "
                f"consistent (rate {rate}){texts} in {where}")
+    if decisions_path:
+        j = judged.judged({d.finding: (d.decision, d.comment) for d in decisions})
+        click.echo(f"decisions: {len(decisions)} on {len(words)} findings ({j.accepted} accepted, {j.rejected} "
+                   f"rejected, {j.commented} with comments)")
     for note in run.notes:
         click.echo(f"note: {note}")
 
@@ -171,6 +182,9 @@ def compare(run_a, run_b, force, fail_on_regression, regression_threshold, alpha
     Runs are named ENGINE:VERSION and must cover the same documents. Runs scored with different settings
     are refused unless --force is given.
     """
+    from dataclasses import replace
+
+    from gendertrace.history import judged
     from gendertrace.history.compare import compare_runs, describe_differences
     from gendertrace.history.store import parse_run_name
 
@@ -180,8 +194,13 @@ def compare(run_a, run_b, force, fail_on_regression, regression_threshold, alpha
         with _open(db) as store:
             info_a, data_a = store.load(ea, va)
             info_b, data_b = store.load(eb, vb)
+            words_a, decided_a = judged.load(store, info_a.id)
+            words_b, decided_b = judged.load(store, info_b.id)
         result = compare_runs(info_a, data_a, info_b, data_b, force=force, samples=samples, trials=trials,
                               seed=seed, metrics=metrics)
+        result = replace(result, diff=judged.findings_diff(words_a, words_b) if words_a or words_b else None,
+                         judged_a=judged.judged(decided_a) if decided_a else None,
+                         judged_b=judged.judged(decided_b) if decided_b else None)
     except GendertraceError as exc:
         _fail(exc)
     if result.differences:

@@ -26,6 +26,7 @@ from gendertrace.history.defaults import (
     DEFAULT_TRIALS,
     FEW_DOCUMENTS,
 )
+from gendertrace.history.judged import FindingsDiff, Judged
 from gendertrace.history.runs import RunData, comparable_signature, signature_differences
 from gendertrace.history.stats import (
     BootstrapRate,
@@ -41,6 +42,7 @@ from gendertrace.history.stats import (
     wilson_interval,
 )
 from gendertrace.history.store import HistoryError, RunInfo
+from gendertrace.results import consistency_rate
 
 
 @dataclass(frozen=True)
@@ -54,7 +56,7 @@ class RunRate:
 
     @property
     def rate(self) -> float | None:
-        return self.consistent / self.checked if self.checked else None
+        return consistency_rate(self.consistent, self.checked)
 
 
 @dataclass(frozen=True)
@@ -90,6 +92,9 @@ class Comparison:
     differences: tuple[tuple[str, object, object], ...] = ()
     seed: int | None = DEFAULT_SEED
     notes: tuple[str, ...] = field(default=())
+    diff: FindingsDiff | None = None  # findings fixed, new and persisting, when both runs kept their words
+    judged_a: Judged | None = None  # the post-editor's decisions on each run's findings, when recorded
+    judged_b: Judged | None = None
 
     @property
     def delta(self) -> float:
@@ -270,10 +275,25 @@ def signature_line(signature: dict) -> str:
 
 def render(c: Comparison, threshold: float = DEFAULT_THRESHOLD, alpha: float = DEFAULT_ALPHA) -> str:
     lines: list[str] = []
+    few = c.documents < FEW_DOCUMENTS
     if c.differences:
         lines.append("WARNING: the runs were scored with different settings; the comparison was forced")
         lines.append("WARNING: and its numbers mix a change of engine with a change of the checker:")
         lines += [f"WARNING:   {d}" for d in describe_differences(c.differences, c.a.name, c.b.name)]
+        lines.append("")
+    if few:
+        lines.append(f"NOTE: only {c.documents} documents: intervals are coarse, and the resampling p-values "
+                     f"below (bootstrap, randomization) are unreliable; read the findings lists instead")
+        lines.append("")
+    if c.diff is not None:
+        d = c.diff
+        lines.append(f"findings from A to B: {len(d.fixed)} fixed, {len(d.new)} new, {len(d.persisting)} "
+                     f"persisting (matched by document, segment and the source word translated)")
+    for label, j in (("A", c.judged_a), ("B", c.judged_b)):
+        if j is not None:
+            lines.append(f"decisions on {label}'s findings: {j.accepted} accepted, {j.rejected} rejected; "
+                         f"precision of judged findings {_r(j.precision)}")
+    if c.diff is not None or c.judged_a is not None or c.judged_b is not None:
         lines.append("")
     lines.append(f"A = {c.a.name}  (recorded {c.a.recorded_at[:19]})")
     lines.append(f"B = {c.b.name}  (recorded {c.b.recorded_at[:19]})")
@@ -288,8 +308,9 @@ def render(c: Comparison, threshold: float = DEFAULT_THRESHOLD, alpha: float = D
                      f"{_iv(r.bootstrap.interval):>20}")
     lines.append(f"  B - A {_r(c.delta, signed=True)}: 95% paired bootstrap {_iv(c.paired.interval, True)} "
                  f"({c.paired.samples} resamples of documents, seed {c.seed})")
+    unreliable = " (unreliable: too few documents)" if few else ""
     lines.append(f"  approximate randomization p = {_p(c.randomization.p_value)} "
-                 f"({c.randomization.trials} trials); paired bootstrap p = {_p(c.paired.p_value)}")
+                 f"({c.randomization.trials} trials); paired bootstrap p = {_p(c.paired.p_value)}{unreliable}")
     lines.append("")
     lines.append("entities with feminine and with masculine source evidence")
     if c.gap_a is None or c.gap_b is None:
@@ -316,9 +337,12 @@ def render(c: Comparison, threshold: float = DEFAULT_THRESHOLD, alpha: float = D
             p = "" if m.p_value is None else f"  p = {_p(m.p_value)}"
             lines.append(f"  {m.name:<6} A {m.score_a:6.2f}  B {m.score_b:6.2f}{p}")
             lines.append(f"         {m.signature}")
-    if c.documents < FEW_DOCUMENTS:
-        lines.append(f"note: only {c.documents} documents: resampling them gives coarse intervals and "
-                     f"p-values")
+    if c.diff is not None:
+        for title, items in (("fixed (in A, not in B)", c.diff.fixed), ("new (in B, not in A)", c.diff.new),
+                             ("persisting (in both)", c.diff.persisting)):
+            lines.append("")
+            lines.append(f"{title}: {len(items)}")
+            lines += [f"  {w.describe()}" for w in items]
     for n in c.notes:
         lines.append(f"note: {n}")
     lines.append("")

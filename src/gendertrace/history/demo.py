@@ -3,9 +3,11 @@
 from __future__ import annotations
 
 import re
+from dataclasses import replace
 from pathlib import Path
 
 from gendertrace.errors import InputError
+from gendertrace.history import judged
 from gendertrace.history.compare import DEFAULT_SAMPLES, DEFAULT_SEED, DEFAULT_TRIALS, compare_runs
 from gendertrace.history.runs import load_run
 from gendertrace.history.store import HistoryStore
@@ -42,7 +44,8 @@ def record_demo(results_dir: str | Path, db: str | Path, corpus: str | Path | No
             engine = demo_engine(direction)
             for _, version, path in versions:
                 run = load_run(path, _input_for(path, corpus))
-                store.record(run, engine, version, replace=True)
+                info = store.record(run, engine, version, replace=True)
+                judged.save(store, info.id, judged.finding_words(path), [])
             if len(versions) < 2:
                 sections += [f"{engine}: only {versions[0][1]} recorded, nothing to compare", ""]
                 continue
@@ -52,6 +55,8 @@ def record_demo(results_dir: str | Path, db: str | Path, corpus: str | Path | No
                 info_b, data_b = store.load(engine, version)
                 result = compare_runs(info_a, data_a, info_b, data_b, samples=samples, trials=trials,
                                       seed=seed)
+                result = replace(result, diff=judged.findings_diff(judged.load(store, info_a.id)[0],
+                                                                   judged.load(store, info_b.id)[0]))
                 sections += [f"== {engine}: {base} -> {version} ==", result.render(), ""]
         sections.append(f"runs recorded in {store.display_url}")
     return "\n".join(sections)

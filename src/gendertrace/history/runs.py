@@ -21,13 +21,13 @@ can differ from the document totals by a reference or two; `RunData.entity_cover
 
 from __future__ import annotations
 
-import json
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, field
 from pathlib import Path
 
 from gendertrace.errors import InputError
 from gendertrace.model import FINDING_KINDS
+from gendertrace.results import ResultDocument, ResultEntity, consistency_rate, read_results, read_signature
 
 # Signature keys that describe the input (or how far the run got) rather than the settings: they may differ
 # between comparable runs. An incomplete run is marked apart (`RunInfo.incomplete`), not as a setting.
@@ -115,6 +115,10 @@ class RunData:
     notes: tuple[str, ...] = field(default=())
 
     @property
+    def rate(self) -> float | None:
+        return consistency_rate(self.consistent, self.checked)
+
+    @property
     def checked(self) -> int:
         return sum(d.checked for d in self.documents)
 
@@ -140,23 +144,6 @@ def signature_differences(a: Mapping[str, object],
     return [(k, ca.get(k), cb.get(k)) for k in sorted(ca.keys() | cb.keys()) if ca.get(k) != cb.get(k)]
 
 
-def read_signature(results_path: Path) -> dict[str, object]:
-    sidecar = Path(str(results_path) + ".signature.json")
-    if not sidecar.is_file():
-        raise InputError(str(sidecar), None,
-                         "no signature file beside the results (written by `gendertrace score`)")
-    try:
-        signature = json.loads(sidecar.read_text(encoding="utf-8"))
-    except json.JSONDecodeError as exc:
-        raise InputError(str(sidecar), exc.lineno, f"not valid JSON: {exc.msg}") from exc
-    if not isinstance(signature, dict):
-        raise InputError(str(sidecar), None, "expected a JSON object")
-    for key in ("tool", "rules"):
-        if key not in signature:
-            raise InputError(str(sidecar), None, f"the signature has no {key!r}")
-    return signature
-
-
 def load_run(results_path: str | Path, input_path: str | Path | None = None,
              fmt: str | None = None, keep_incomplete: bool = False) -> RunData:
     """Read RESULTS.jsonl, its signature sidecar and (optionally) the input's texts into a RunData.
@@ -172,29 +159,18 @@ def load_run(results_path: str | Path, input_path: str | Path | None = None,
     findings: list[FindingRecord] = []
     langs: set[tuple[str, str]] = set()
     seen: set[str] = set()
-    try:
-        f = open(results_path, encoding="utf-8")
-    except OSError as exc:
-        raise InputError(str(results_path), None, f"cannot read: {exc.strerror}") from exc
-    with f:
-        for line_no, line in enumerate(f, 1):
-            if not line.strip():
-                continue
-            try:
-                doc = json.loads(line)
-                rec, ents, fds = _document(doc, len(documents), min_conf)
-            except json.JSONDecodeError as exc:
-                raise InputError(str(results_path), line_no, f"not valid JSON: {exc.msg}") from exc
-            except (KeyError, TypeError, ValueError) as exc:
-                raise InputError(str(results_path), line_no,
-                                 f"not a gendertrace result: {_describe(exc)}") from exc
-            if rec.doc_id in seen:
-                raise InputError(str(results_path), line_no, f"document {rec.doc_id!r} appears twice")
-            seen.add(rec.doc_id)
-            documents.append(rec)
-            entities.extend(ents)
-            findings.extend(fds)
-            langs.add((str(doc.get("src_lang", "")), str(doc.get("tgt_lang", ""))))
+    for doc in read_results(results_path):
+        try:
+            rec, ents, fds = _document(doc, len(documents), min_conf)
+        except ValueError as exc:
+            raise InputError(str(results_path), doc.line, f"not a gendertrace result: {exc}") from exc
+        if rec.doc_id in seen:
+            raise InputError(str(results_path), doc.line, f"document {rec.doc_id!r} appears twice")
+        seen.add(rec.doc_id)
+        documents.append(rec)
+        entities.extend(ents)
+        findings.extend(fds)
+        langs.add((doc.src_lang, doc.tgt_lang))
     if not documents:
         raise InputError(str(results_path), None, "no documents in the results")
     if signature.get("state") == INCOMPLETE and not keep_incomplete:
@@ -216,53 +192,39 @@ def load_run(results_path: str | Path, input_path: str | Path | None = None,
                    src_lang=src_lang, tgt_lang=tgt_lang, notes=notes)
 
 
-def _describe(exc: Exception) -> str:
-    return f"missing key {exc.args[0]!r}" if isinstance(exc, KeyError) else str(exc)
-
-
-def _document(doc: Mapping, position: int, min_conf: float
+def _document(doc: ResultDocument, position: int, min_conf: float
               ) -> tuple[DocumentRecord, list[EntityRecord], list[FindingRecord]]:
-    doc_id = str(doc["doc_id"])
-    stats = doc["stats"]
-    by_kind = {k: int(stats.get("findings", {}).get(k, 0)) for k in FINDING_KINDS}
+    st = doc.stats
     rec = DocumentRecord(
-        doc_id=doc_id, position=position, segments=int(stats.get("segments", 0)),
-        entities=int(stats.get("entities", len(doc.get("entities", [])))),
-        target_references=int(stats.get("target_references", 0)),
-        checked=int(stats["checked"]), consistent=int(stats["consistent"]),
-        findings=by_kind, skipped=str(doc.get("skipped", "")),
+        doc_id=doc.doc_id, position=position, segments=st.segments, entities=st.entities,
+        target_references=st.target_references, checked=st.checked, consistent=st.consistent,
+        findings={k: int(st.findings.get(k, 0)) for k in FINDING_KINDS}, skipped=doc.skipped,
     )
     if rec.consistent > rec.checked or rec.checked < 0 or rec.consistent < 0:
-        raise ValueError(f"document {doc_id!r}: consistent {rec.consistent} is not within "
+        raise ValueError(f"document {doc.doc_id!r}: consistent {rec.consistent} is not within "
                          f"0..checked {rec.checked}")
-    findings = [
-        FindingRecord(doc_id, str(fd["kind"]), str(fd["seg_id"]), int(fd["start"]), int(fd["end"]),
-                      str(fd.get("text", "")), fd.get("expected"), fd.get("found"), str(fd.get("entity", "")),
-                      float(fd.get("confidence", 0.0)))
-        for fd in doc.get("findings", [])
-    ]
+    findings = [FindingRecord(doc.doc_id, f.kind, f.seg_id, f.start, f.end, f.text, f.expected, f.found, f.entity,
+                              f.confidence) for f in doc.findings]
     flagged: dict[str, int] = {}
     for fd in findings:
         if fd.kind in ("contradiction", "inconsistency"):
             flagged[fd.entity] = flagged.get(fd.entity, 0) + 1
-    entities = [_entity(doc_id, e, flagged.get(str(e["id"]), 0), min_conf) for e in doc.get("entities", [])]
+    entities = [_entity(doc.doc_id, e, flagged.get(e.id, 0), min_conf) for e in doc.entities]
     return rec, entities, findings
 
 
-def _entity(doc_id: str, e: Mapping, flagged: int, min_conf: float) -> EntityRecord:
-    evidence = e.get("evidence", [])
-    sides = {ev.get("side") for ev in evidence}
+def _entity(doc_id: str, e: ResultEntity, flagged: int, min_conf: float) -> EntityRecord:
+    sides = {ev.side for ev in e.evidence}
     basis = "source" if "source" in sides else "target" if "target" in sides else "none"
-    gender = e.get("gender")
-    confidence = float(e.get("confidence", 0.0))
-    if "checked" in e and "consistent" in e:
-        checked, consistent, counts = int(e["checked"]), int(e["consistent"]), "reported"
+    if e.checked is not None and e.consistent is not None:
+        checked, consistent, counts = e.checked, e.consistent, "reported"
     else:
-        checked = estimate_checked(evidence) if basis == "source" and confidence >= min_conf else 0
+        evidence = [{"side": ev.side, "gender": ev.gender, "seg_id": ev.seg_id, "start": ev.start, "end": ev.end,
+                     "rule": ev.rule} for ev in e.evidence]
+        checked = estimate_checked(evidence) if basis == "source" and e.confidence >= min_conf else 0
         checked = max(checked, flagged)
         consistent, counts = checked - flagged, "estimated"
-    return EntityRecord(doc_id, str(e["id"]), str(e.get("label", "")), gender, confidence, basis, checked,
-                        consistent, counts)
+    return EntityRecord(doc_id, e.id, e.label, e.gender, e.confidence, basis, checked, consistent, counts)
 
 
 def estimate_checked(evidence: Sequence[Mapping]) -> int:

@@ -27,7 +27,13 @@ from gendertrace.io.outputs import StagedOutputs, check_outputs
 @click.option("--tmx-group", default=None, metavar="PROP",
               help="TMX input: group units into documents by <prop type=PROP> (as when it was scored).")
 @click.option("--title", default="Gender consistency review", show_default=True, help="Title of the report.")
-def review(results, input_path, out, xliff_out, csv_out, bom, fmt, tmx_group, title):
+@click.option("--min-confidence", type=click.FloatRange(0, 1), default=None,
+              help="Where the report's confidence filter starts; by default the run's minimum confidence "
+                   "(from RESULTS.jsonl.signature.json), so findings below it stay hidden unless asked for.")
+@click.option("--assumptions", type=click.Choice(["shown", "hidden"]), default="shown", show_default=True,
+              help="Whether assumption findings are shown when the report opens (a team's reading policy).")
+def review(results, input_path, out, xliff_out, csv_out, bom, fmt, tmx_group, title, min_confidence,
+           assumptions):
     """Build the review of RESULTS.jsonl (written by `gendertrace score`) for post-editors.
 
     The HTML report shows each document's source and target side by side with every flagged word
@@ -52,11 +58,14 @@ def review(results, input_path, out, xliff_out, csv_out, bom, fmt, tmx_group, ti
                                      param_hint="--xliff-out")
         documents = load_review(results, read_corpus(input_path, fmt, tmx_group=tmx_group))
         missing = [d.doc_id for d in documents if not d.segments]
+        if min_confidence is None:
+            min_confidence = _run_minimum(results)
         messages: list[tuple[str, bool]] = []  # printed once every output is in place
         # Every output goes to a temporary file first; all are renamed into place only when all are written.
         with StagedOutputs() as staged:
             report = render_report(documents, title=title, results_name=Path(results).name,
-                                   input_name=Path(input_path).name)
+                                   input_name=Path(input_path).name, min_confidence=min_confidence,
+                                   hide_assumptions=assumptions == "hidden")
             staged.write_text(out, report)
             findings = sum(len(d.findings) for d in documents)
             messages.append((f"report: {out} ({len(documents)} documents, {findings} findings)", False))
@@ -81,3 +90,14 @@ def review(results, input_path, out, xliff_out, csv_out, bom, fmt, tmx_group, ti
         raise click.ClickException(f"{exc.filename or out}: cannot write: {exc.strerror}") from exc
     for message, to_stderr in messages:
         click.echo(message, err=to_stderr)
+
+
+def _run_minimum(results: str) -> float:
+    """The run's minimum confidence from its signature; 0 when the signature is missing or silent."""
+    from gendertrace.results import read_signature
+
+    try:
+        value = read_signature(results, required=()).get("min_confidence", 0.0)
+        return min(max(float(value), 0.0), 1.0)
+    except (GendertraceError, TypeError, ValueError):
+        return 0.0

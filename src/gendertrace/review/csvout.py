@@ -1,8 +1,11 @@
 """Findings as a spreadsheet: one CSV row per finding.
 
 Columns (in this order): finding, document, segment, kind, target (the segment's target with the flagged words
-between ⟦ and ⟧), flagged, start, end, expected, found, confidence, person, message, evidence (each item as
-'text' (side, segment N, kind, gender), separated by "; ").
+between ⟦ and ⟧), flagged, start, end, expected, found, confidence, person, source word (the source word the
+flagged words are linked through, with its segment), suggestion (the corrected form, when the rules can build
+one), message, evidence (each item as 'text' (side, segment N, kind, gender), separated by "; "), then two
+empty columns for the post-editor: decision (accept or reject) and comment. `gendertrace history record
+--decisions` reads the file back (see gendertrace.review.decisions).
 
 UTF-8 throughout, rows ended by CRLF and cells quoted when needed (RFC 4180); `bom=True` starts the file
 with a UTF-8 byte order mark so that spreadsheet programs recognise the encoding. Because the texts come from
@@ -20,7 +23,7 @@ from gendertrace.review.results import ReviewDocument, ReviewFinding
 
 COLUMNS: tuple[str, ...] = (
     "finding", "document", "segment", "kind", "target", "flagged", "start", "end", "expected", "found",
-    "confidence", "person", "message", "evidence",
+    "confidence", "person", "source word", "suggestion", "message", "evidence", "decision", "comment",
 )
 OPEN_MARK, CLOSE_MARK = "⟦", "⟧"
 _FORMULA_STARTS = ("=", "+", "-", "@", "\t", "\r")
@@ -47,7 +50,8 @@ def finding_rows(documents: Sequence[ReviewDocument]) -> list[list[str]]:
             rows.append([
                 f.id, _cell(d.doc_id), _cell(f.seg_id), f.kind, _cell(target), _cell(f.text), str(f.start),
                 str(f.end), f.expected or "", f.found or "", f"{f.confidence:.3f}", _cell(person),
-                _cell(f.message), _cell(f.evidence_summary()),
+                _cell(f.source_summary()), _cell(f.suggestion or ""), _cell(f.message), _cell(f.evidence_summary()),
+                "", "",
             ])
     return rows
 

@@ -43,6 +43,8 @@ def note_text(f: ReviewFinding) -> str:
     ]
     if f.message:
         parts.append(f.message.rstrip(".") + ".")
+    if f.suggestion:
+        parts.append(f"Suggested form: '{f.suggestion}'.")
     if f.evidence:
         parts.append("Evidence: " + f.evidence_summary() + ".")
     parts.append("An aid for the post-editor, not a verdict.")

@@ -25,7 +25,6 @@ from collections.abc import Callable, Iterable, Iterator
 from dataclasses import dataclass, field
 from pathlib import Path
 
-from gendertrace.api import Summary
 from gendertrace.declared.policy import PACKAGE_NAME_LIST, load_first_names
 from gendertrace.errors import GendertraceError, InputError
 from gendertrace.io.outputs import check_outputs, replace_into, staged_file, temporary_beside
@@ -33,6 +32,7 @@ from gendertrace.io.readers import iter_documents, read_corpus, untranslated_in
 from gendertrace.model import Document
 from gendertrace.parse.conllu_backend import ConlluParser
 from gendertrace.pipeline import Scorer
+from gendertrace.results import Summary
 from gendertrace.scale.executors import DaskExecutor, InlineExecutor, ProcessExecutor
 from gendertrace.scale.plan import ScoringPlan, scorer_for
 from gendertrace.scale.priors import PriorCounts

@@ -1,5 +1,7 @@
-/* The review report's behaviour: select a finding, show its evidence, filter, move with the keys, sort.
-   It only toggles classes and attributes on markup the report already holds; it never builds markup from data. */
+/* The review report's behaviour: select a finding, show its evidence, filter, move with the keys, sort, and
+   keep the post-editor's decisions (local storage) and export them as a decisions file.
+   It only toggles classes, attributes and form values on markup the report already holds; it never builds
+   markup from data. */
 (function () {
   "use strict";
 
@@ -39,6 +41,7 @@
       el.classList.remove("is-evidence");
     });
     details.forEach(function (d) { d.hidden = true; });
+    Array.prototype.forEach.call(document.querySelectorAll(".pdetail"), function (p) { p.hidden = true; });
     if (empty) { empty.hidden = false; }
     selectedId = null;
   }
@@ -63,6 +66,8 @@
       }
     }
     detail.hidden = false;
+    var person = document.getElementById(detail.getAttribute("data-person") || "");
+    if (person) { person.hidden = false; }
     if (empty) { empty.hidden = true; }
     if (window.history && window.history.replaceState) {
       try { window.history.replaceState(null, "", "#" + id); } catch (e) { /* some file viewers refuse */ }
@@ -161,6 +166,92 @@
     else if (ev.key === "p" || ev.key === "P") { ev.preventDefault(); step(-1); }
     else if (ev.key === "Escape") { clearSelection(); }
   });
+
+  /* Decisions: one record per finding id, kept under the report's key; the export names each finding's
+     place and words too, so that it can be matched to the results again. */
+  var storeKey = document.body.getAttribute("data-decisions-key") || "gendertrace-decisions";
+  var decided = document.getElementById("decided-count");
+  var memory = {};
+  function loadDecisions() {
+    try {
+      var text = window.localStorage.getItem(storeKey);
+      return text ? JSON.parse(text) : {};
+    } catch (e) { return memory; }
+  }
+  function saveDecisions(all) {
+    memory = all;
+    try { window.localStorage.setItem(storeKey, JSON.stringify(all)); } catch (e) { /* kept in memory */ }
+  }
+  function countDecided(all) {
+    if (decided) { decided.textContent = Object.keys(all).length + " decided"; }
+  }
+  function readForm(box) {
+    var id = box.getAttribute("data-finding-id");
+    var chosen = box.querySelector("input[type=radio]:checked");
+    var comment = box.querySelector("textarea").value;
+    var all = loadDecisions();
+    if (!chosen && !comment.trim()) { delete all[id]; }
+    else {
+      all[id] = { decision: chosen ? chosen.value : "", comment: comment,
+                  decided_at: new Date().toISOString() };
+    }
+    saveDecisions(all);
+    countDecided(all);
+  }
+  function restoreForms() {
+    var all = loadDecisions();
+    Array.prototype.forEach.call(document.querySelectorAll(".decision"), function (box) {
+      var rec = all[box.getAttribute("data-finding-id")];
+      if (!rec) { return; }
+      Array.prototype.forEach.call(box.querySelectorAll("input[type=radio]"), function (r) {
+        r.checked = r.value === rec.decision;
+      });
+      box.querySelector("textarea").value = rec.comment || "";
+    });
+    countDecided(all);
+  }
+  function exportDecisions() {
+    var all = loadDecisions();
+    var out = [];
+    details.forEach(function (d) {
+      var id = d.getAttribute("data-finding-id");
+      var rec = all[id];
+      if (!rec) { return; }
+      out.push({ finding: id, document: d.getAttribute("data-doc-id"), segment: d.getAttribute("data-seg-id"),
+                 start: parseInt(d.getAttribute("data-start"), 10), end: parseInt(d.getAttribute("data-end"), 10),
+                 text: d.getAttribute("data-text"), kind: d.getAttribute("data-kind"), decision: rec.decision,
+                 comment: rec.comment, decided_at: rec.decided_at });
+    });
+    var file = { format: "gendertrace-decisions", version: 1, results: document.body.getAttribute("data-results"),
+                 exported_at: new Date().toISOString(), decisions: out };
+    var blob = new Blob([JSON.stringify(file, null, 2) + "\n"], { type: "application/json" });
+    var link = document.createElement("a");
+    var base = (document.body.getAttribute("data-results") || "review").replace(/\.jsonl$/, "");
+    link.href = URL.createObjectURL(blob);
+    link.download = base + ".decisions.json";
+    document.body.appendChild(link);
+    link.click();
+    setTimeout(function () { URL.revokeObjectURL(link.href); link.remove(); }, 1000);
+  }
+  document.addEventListener("change", function (ev) {
+    var box = ev.target.closest && ev.target.closest(".decision");
+    if (box) { readForm(box); }
+  });
+  document.addEventListener("input", function (ev) {
+    var box = ev.target.closest && ev.target.closest(".decision");
+    if (box && ev.target.tagName.toLowerCase() === "textarea") { readForm(box); }
+  });
+  document.addEventListener("click", function (ev) {
+    var clear = ev.target.closest && ev.target.closest("[data-clear-decision]");
+    if (clear) {
+      var box = clear.closest(".decision");
+      Array.prototype.forEach.call(box.querySelectorAll("input[type=radio]"), function (r) { r.checked = false; });
+      box.querySelector("textarea").value = "";
+      readForm(box);
+    }
+    if (ev.target.closest && ev.target.closest("#export-decisions")) { exportDecisions(); }
+  });
+  restoreForms();
 
   boxes.forEach(function (b) { b.addEventListener("change", applyFilters); });
   if (slider) { slider.addEventListener("input", applyFilters); slider.addEventListener("change", applyFilters); }
