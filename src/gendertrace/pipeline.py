@@ -13,8 +13,9 @@ from gendertrace.declared.policy import Policy
 from gendertrace.declared.sheet import EntitySheet
 from gendertrace.evidence.resolve import build_entities, dedupe
 from gendertrace.findings.detect import detect_findings
-from gendertrace.link.align import anchor_alignment, merge, statistical_alignments
+from gendertrace.link.align import anchor_alignment, merge
 from gendertrace.link.linker import link_mentions
+from gendertrace.link.wordpairs import default_aligner
 from gendertrace.mentions.extract import SINGULAR_THEY_RULE, extract_mentions, name_key, singular_they_ok
 from gendertrace.model import Document, DocumentResult, ParsedDocument, ParsedText
 from gendertrace.parse.base import Parser, get_parser
@@ -89,9 +90,10 @@ class Scorer:
                                                       ((tgt_lang, s.tgt_model), tgt_parser)) if given is None)
         self.src_parser = src_parser or get_parser(src_lang, s.parser, s.src_model)
         self.tgt_parser = tgt_parser or get_parser(tgt_lang, s.parser, s.tgt_model)
-        # Hook: the batch's statistical aligner; gendertrace.scale swaps in priors, threads or a frozen model.
+        # Hook: the batch's statistical aligner, by default a fixed model that aligns each segment on its own
+        # (deterministic); gendertrace.scale swaps in eflomal sampled per batch or a frozen model.
         self.statistical_aligner: Callable[[Sequence[ParsedText], Sequence[ParsedText]], list | None] = (
-            statistical_alignments
+            default_aligner(src_lang, tgt_lang)
         )
 
     def signature(self) -> dict:
@@ -103,6 +105,7 @@ class Scorer:
             "min_confidence": self.settings.min_confidence,
             "policy": self.settings.policy.to_json(),
             "entity_sheet": self.settings.entity_sheet.digest if self.settings.entity_sheet else None,
+            "alignment": getattr(self.statistical_aligner, "label", "custom"),
         }
 
     def parse(self, docs: Sequence[Document]) -> list[ParsedDocument]:

@@ -1,0 +1,248 @@
+"""Where scoring time goes and how it grows: stage profile, end to end against spaCy alone, growth with document
+and segment length on invented text, and the determinism check.
+
+Every end-to-end figure is a whole process (`python -m gendertrace.cli score --jobs 1 --no-cache`) against a
+whole process that loads the same spaCy pipelines and parses both sides, run alternately; the stage profile
+runs in this process with timers around the pipeline's stage functions. Real text is read at run time from
+`../shared` (the real MT dev set and the treebank) and never written into the repository; the growth runs use
+invented text made here (`invented_pair`).
+"""
+
+from __future__ import annotations
+
+import json
+import random
+import statistics
+import subprocess
+import sys
+import tempfile
+import time
+from collections import defaultdict
+from collections.abc import Callable
+from contextlib import contextmanager
+from pathlib import Path
+
+SCORE = [sys.executable, "-m", "gendertrace.cli", "score"]
+DOC_LENGTHS = (1, 5, 20, 50, 2000)  # segments per document; 2000 segments in all for each
+SEGMENT_KB = (0.5, 2, 10, 50, 200)  # size of the one source segment of a one-segment document
+GROWTH_TIMEOUT = 300.0  # seconds a growth run may take before it is reported as unfinished
+# Parses both sides of a JSONL/TSV input with the spaCy pipelines alone, as the scorer would load them.
+_SPACY_ONLY = (
+    "import sys\n"
+    "from gendertrace.io.readers import read_corpus\n"
+    "from gendertrace.parse.spacy_backend import load_pipeline, pipeline_name\n"
+    "docs = read_corpus(sys.argv[1])\n"
+    "for side, lang in (('source', sys.argv[2]), ('target', sys.argv[3])):\n"
+    "    nlp = load_pipeline(pipeline_name(lang))\n"
+    "    for _ in nlp.pipe([getattr(s, side) for d in docs for s in d.segments], batch_size=64):\n"
+    "        pass\n"
+)
+
+# Invented people, places and things; the sentences are written for this benchmark.
+_NAMES = [("Maribel Quintana", "f"), ("Tobías Arnedo", "m"), ("Lucía Verbena", "f"), ("Ramiro Castellet", "m"),
+          ("Irene Solvay", "f"), ("Damián Oquendo", "m")]
+_PLACES = ["Villaseca del Monte", "Puerto Alborán", "Santa Eulària de Nerja", "Valdemora"]
+_PAIRS = [
+    ("{n} es {a_es} en {p}.", "{n} is {a_en} in {p}."),
+    ("{P_es} dice que el informe de la comisión estará listo mañana.",
+     "{P_en} says that the committee's report will be ready tomorrow."),
+    ("Ayer {n} visitó el mercado con su hermano y compró pan.",
+     "Yesterday {n} visited the market with {pos_en} brother and bought bread."),
+    ("Según {n}, la nueva carretera llegará a {p} antes del invierno.",
+     "According to {n}, the new road will reach {p} before winter."),
+    ("{P_es} está {cansado} porque trabajó toda la noche.", "{P_en} is tired because {p_en} worked all night."),
+]
+_ROLES = {"f": ("la directora", "the director", "Ella", "She", "she", "her", "cansada"),
+          "m": ("el director", "the director", "Él", "He", "he", "his", "cansado")}
+
+
+def invented_pair(k: int, rng: random.Random) -> tuple[str, str]:
+    """The k-th invented Spanish-English sentence pair (a person, a place, a gendered role)."""
+    name, g = _NAMES[rng.randrange(len(_NAMES))]
+    a_es, a_en, p_es, p_en, low_en, pos_en, tired = _ROLES[g]
+    es, en = _PAIRS[k % len(_PAIRS)]
+    fill = dict(n=name, p=_PLACES[rng.randrange(len(_PLACES))], a_es=a_es, a_en=a_en, P_es=p_es, P_en=p_en,
+                p_en=low_en, pos_en=pos_en, cansado=tired)
+    return es.format(**fill), en.format(**fill)
+
+
+def write_invented(path: Path, docs: int, segments: int, sentences: int, seed: int = 5) -> int:
+    """A TSV input of `docs` documents of `segments` segments of `sentences` invented sentence pairs each;
+    returns the characters of the source side."""
+    rng = random.Random(seed)
+    chars, k = 0, 0
+    with open(path, "w", encoding="utf-8") as f:
+        f.write("doc_id\tseg_id\tsource\ttarget\n")
+        for d in range(docs):
+            for s in range(segments):
+                es, en = [], []
+                for _ in range(sentences):
+                    a, b = invented_pair(k, rng)
+                    k += 1
+                    es.append(a)
+                    en.append(b)
+                src = " ".join(es)
+                chars += len(src)
+                f.write(f"d{d + 1}\t{s + 1}\t{src}\t{' '.join(en)}\n")
+    return chars
+
+
+def _run(cmd: list[str], timeout: float | None = None) -> float | None:
+    """Wall seconds of a whole process, None when it did not finish within `timeout`."""
+    started = time.perf_counter()
+    try:
+        proc = subprocess.run(cmd, capture_output=True, text=True, timeout=timeout)
+    except subprocess.TimeoutExpired:
+        return None
+    if proc.returncode != 0:
+        raise RuntimeError(f"{' '.join(cmd[:4])} failed: {proc.stderr.strip()[-600:]}")
+    return time.perf_counter() - started
+
+
+def score_cmd(inp: Path, out: Path, src: str, tgt: str, *options: str) -> list[str]:
+    return [*SCORE, str(inp), "-s", src, "-t", tgt, "--out", str(out), "--quiet", "--no-progress", *options]
+
+
+def against_spacy(inp: Path, src: str, tgt: str, tmp: Path, runs: int = 3) -> tuple[float, float]:
+    """Median wall seconds of `score --jobs 1 --no-cache` and of the spaCy-only parse of both sides, as whole
+    processes run alternately."""
+    ends, parses = [], []
+    for r in range(runs):
+        ends.append(_run(score_cmd(inp, tmp / f"e2e-{r}.jsonl", src, tgt, "--jobs", "1", "--no-cache")))
+        parses.append(_run([sys.executable, "-c", _SPACY_ONLY, str(inp), src, tgt]))
+    return statistics.median(ends), statistics.median(parses)
+
+
+def doc_length_growth(tmp: Path, total: int = 2000) -> list[tuple[int, float | None]]:
+    """Seconds per segment of one process scoring `total` two-sentence segments cut into documents of each
+    length in DOC_LENGTHS."""
+    out = []
+    for n in DOC_LENGTHS:
+        inp = tmp / f"doclen-{n}.tsv"
+        write_invented(inp, total // n, n, 2)
+        t = _run(score_cmd(inp, tmp / f"doclen-{n}.jsonl", "es", "en", "--jobs", "1", "--no-cache"),
+                 GROWTH_TIMEOUT)
+        out.append((n, None if t is None else t / total))
+    return out
+
+
+def segment_length_growth(tmp: Path) -> list[tuple[float, int, float | None]]:
+    """(KB asked, source characters, seconds per character) of one document of one segment of each size in
+    SEGMENT_KB, less the time of the same command on a one-sentence document (start-up and model loading)."""
+    empty = tmp / "seglen-base.tsv"
+    write_invented(empty, 1, 1, 1)
+    base = _run(score_cmd(empty, tmp / "seglen-base.jsonl", "es", "en", "--jobs", "1", "--no-cache"))
+    out = []
+    for kb in SEGMENT_KB:
+        sentences = max(1, round(kb * 1024 / 60))  # an invented Spanish sentence is about 60 characters
+        inp = tmp / f"seglen-{kb}.tsv"
+        chars = write_invented(inp, 1, 1, sentences)
+        t = _run(score_cmd(inp, tmp / f"seglen-{kb}.jsonl", "es", "en", "--jobs", "1", "--no-cache"),
+                 GROWTH_TIMEOUT)
+        out.append((kb, chars, None if t is None else max(t - base, 0.0) / chars))
+    return out
+
+
+def by_doc(path: Path) -> dict[str, str]:
+    return {json.loads(line)["doc_id"]: line for line in path.read_text(encoding="utf-8").splitlines()}
+
+
+def determinism(inp: Path, src: str, tgt: str, tmp: Path, alone: str) -> dict[str, int]:
+    """Documents whose result differs from a plain run (`--jobs 1`, default batches) under `--jobs 2`
+    (batches of 20), under `--batch-docs 7`, and for document `alone` scored in a file of its own."""
+    from gendertrace.io.readers import read_corpus
+
+    base = tmp / "det-base.jsonl"
+    _run(score_cmd(inp, base, src, tgt, "--jobs", "1", "--no-cache"))
+    _run(score_cmd(inp, tmp / "det-j2.jsonl", src, tgt, "--jobs", "2", "--batch-docs", "20", "--no-cache"))
+    _run(score_cmd(inp, tmp / "det-b7.jsonl", src, tgt, "--jobs", "1", "--batch-docs", "7", "--no-cache"))
+    doc = next(d for d in read_corpus(inp) if d.doc_id == alone)
+    single = tmp / "det-alone.jsonl.in"
+    with open(single, "w", encoding="utf-8") as f:
+        for s in doc.segments:
+            f.write(json.dumps({"doc_id": doc.doc_id, "seg_id": s.seg_id, "source": s.source,
+                                "target": s.target}, ensure_ascii=False) + "\n")
+    _run(score_cmd(single, tmp / "det-alone.jsonl", src, tgt, "--jobs", "1", "--no-cache", "--format", "jsonl"))
+    ref = by_doc(base)
+
+    def differ(path: Path) -> int:
+        other = by_doc(path)
+        return sum(other.get(k) != ref.get(k) for k in other.keys() | (ref.keys() if len(other) > 1 else set()))
+
+    return {"documents": len(ref), "jobs 2": differ(tmp / "det-j2.jsonl"),
+            "batch-docs 7": differ(tmp / "det-b7.jsonl"), "alone": differ(tmp / "det-alone.jsonl")}
+
+
+# ----------------------------------------------------------------------------------------------------
+# Stage profile
+
+
+STAGES = {  # pipeline module global -> stage
+    "extract_mentions": "mentions", "resolve_chains": "coreference", "singular_they_ok": "coreference",
+    "anchor_alignment": "alignment", "merge": "alignment", "link_mentions": "linking",
+    "build_entities": "findings", "apply_declarations": "findings", "detect_findings": "findings",
+}
+
+
+@contextmanager
+def _timed(module, name: str, totals: dict[str, float], stage: str):
+    original = getattr(module, name)
+
+    def wrapper(*args, **kwargs):
+        t0 = time.perf_counter()
+        try:
+            return original(*args, **kwargs)
+        finally:
+            totals[stage] += time.perf_counter() - t0
+
+    setattr(module, name, wrapper)
+    try:
+        yield
+    finally:
+        setattr(module, name, original)
+
+
+def stage_profile(inp: Path, src: str, tgt: str) -> dict[str, float]:
+    """Seconds per stage of scoring INPUT in this process (pipelines loaded beforehand, no cache): read, parse,
+    mentions, coreference, alignment (the statistical aligner and the anchors), linking, findings (entities,
+    declarations and findings), write (results as JSON lines), and the rest of the scoring."""
+    from contextlib import ExitStack
+
+    from gendertrace import pipeline
+    from gendertrace.io.readers import read_corpus
+    from gendertrace.pipeline import Scorer
+
+    totals: dict[str, float] = defaultdict(float)
+    t0 = time.perf_counter()
+    docs = read_corpus(inp)
+    totals["read"] = time.perf_counter() - t0
+    scorer = Scorer(src, tgt)
+    scorer.src_parser.parse_many(["Una frase."] if src == "es" else ["A sentence."])  # load the pipelines
+    scorer.tgt_parser.parse_many(["A sentence."] if tgt == "en" else ["Una frase."])
+    aligner: Callable = scorer.statistical_aligner
+
+    def timed_aligner(s, t):
+        a0 = time.perf_counter()
+        try:
+            return aligner(s, t)
+        finally:
+            totals["alignment"] += time.perf_counter() - a0
+
+    scorer.statistical_aligner = timed_aligner
+    with ExitStack() as stack:
+        for name, stage in STAGES.items():
+            stack.enter_context(_timed(pipeline, name, totals, stage))
+        started = time.perf_counter()
+        parsed = scorer.parse(docs)
+        totals["parse"] = time.perf_counter() - started
+        s0 = time.perf_counter()
+        results = list(scorer.score_parsed_batch(parsed))
+        scored = time.perf_counter() - s0
+    w0 = time.perf_counter()
+    with tempfile.TemporaryFile("w", encoding="utf-8") as f:
+        for r in results:
+            f.write(json.dumps(r.to_json(), ensure_ascii=False) + "\n")
+    totals["write"] = time.perf_counter() - w0
+    staged = sum(v for k, v in totals.items() if k not in ("read", "parse", "write"))
+    totals["other scoring"] = max(scored - staged, 0.0)
+    return dict(totals)
