@@ -25,7 +25,7 @@ from pathlib import Path
 SCORE = [sys.executable, "-m", "gendertrace.cli", "score"]
 DOC_LENGTHS = (1, 5, 20, 50, 2000)  # segments per document; 2000 segments in all for each
 SEGMENT_KB = (0.5, 2, 10, 50, 200)  # size of the one source segment of a one-segment document
-GROWTH_TIMEOUT = 300.0  # seconds a growth run may take before it is reported as unfinished
+GROWTH_TIMEOUT = 180.0  # seconds a growth run may take before it is reported as unfinished
 # Parses both sides of a JSONL/TSV input with the spaCy pipelines alone, as the scorer would load them.
 _SPACY_ONLY = (
     "import sys\n"
@@ -246,3 +246,79 @@ def stage_profile(inp: Path, src: str, tgt: str) -> dict[str, float]:
     staged = sum(v for k, v in totals.items() if k not in ("read", "parse", "write"))
     totals["other scoring"] = max(scored - staged, 0.0)
     return dict(totals)
+
+
+# ----------------------------------------------------------------------------------------------------
+# The report section
+
+
+def speed_section(data_dir: Path, realmt_dir: Path, treebank_tsv: Path | None = None) -> list[str]:
+    """Markdown lines: stage profile, end to end against spaCy alone, growth, determinism."""
+    lines = ["## Where the time goes, growth and determinism", ""]
+    reference = realmt_dir / "reference.jsonl"
+    with tempfile.TemporaryDirectory(prefix="gendertrace-speed-") as tmp_name:
+        tmp = Path(tmp_name)
+        corpora: list[tuple[str, Path, str, str, int]] = []
+        if reference.is_file():
+            corpora.append(("real MT dev set, reference (en-es)", reference, "en", "es", 3))
+        from gendertrace.bench.pud import pud_path
+
+        if treebank_tsv is None and all(pud_path(data_dir, lang).is_file() for lang in ("es", "en")):
+            from gendertrace.bench.scale import write_corpus
+
+            treebank_tsv = tmp / "treebank.tsv"
+            write_corpus(data_dir, treebank_tsv)
+        if treebank_tsv is not None:
+            corpora.append(("treebank (es-en)", treebank_tsv, "es", "en", 1))
+        if not corpora:
+            return lines + [f"Skipped: neither {reference} nor the treebank in {data_dir}.", ""]
+        lines += ["Stage profile: one process, pipelines loaded beforehand, no cache, timers around the "
+                  "pipeline's stage functions (`gendertrace.bench.speed.stage_profile`); seconds and share.", "",
+                  "| input | read | parse | mentions | coreference | alignment | linking | findings | other "
+                  "scoring | write | all |", "|---|" + "---:|" * 10]
+        for label, inp, src, tgt, _ in corpora:
+            prof = stage_profile(inp, src, tgt)
+            total = sum(prof.values())
+            cells = " | ".join(f"{prof.get(k, 0.0):.1f} ({100 * prof.get(k, 0.0) / total:.0f}%)" for k in
+                               ("read", "parse", "mentions", "coreference", "alignment", "linking", "findings",
+                                "other scoring", "write"))
+            lines.append(f"| {label} | {cells} | {total:.1f} |")
+        lines += ["", "End to end (`score --jobs 1 --no-cache`, a whole process) against the spaCy-only parse of "
+                  "both sides (a whole process loading the same pipelines), run alternately; median of the runs "
+                  "(target: at most 1.3).", "",
+                  "| input | runs | end to end s | spaCy only s | ratio |", "|---|---:|---:|---:|---:|"]
+        for label, inp, src, tgt, runs in corpora:
+            e2e, parse = against_spacy(inp, src, tgt, tmp, runs)
+            lines.append(f"| {label} | {runs} | {e2e:.1f} | {parse:.1f} | {e2e / parse:.2f} |")
+        lines += ["", "Growth with document length: 2,000 invented two-sentence es-en segments, cut into documents "
+                  "of N segments, one process each (start-up included, the same for every N; target: at most "
+                  "1.2x from 5 to 2,000).", "", "| segments per document | ms per segment |", "|---:|---:|"]
+        for n, per in doc_length_growth(tmp):
+            cell = f"did not finish in {GROWTH_TIMEOUT:.0f} s" if per is None else f"{1000 * per:.1f}"
+            lines.append(f"| {n} | {cell} |")
+        lines += ["", "Growth with segment length: one document of one invented segment, time less that of a "
+                  "one-sentence document (start-up and loading).", "",
+                  "| KB asked | source characters | us per character |", "|---:|---:|---:|"]
+        for kb, chars, per in segment_length_growth(tmp):
+            cell = f"did not finish in {GROWTH_TIMEOUT:.0f} s" if per is None else f"{1e6 * per:.1f}"
+            lines.append(f"| {kb} | {chars} | {cell} |")
+        label, inp, src, tgt, _ = corpora[0]
+        from gendertrace.io.readers import read_corpus
+
+        docs = read_corpus(inp)
+        alone = docs[len(docs) // 2].doc_id
+        det = determinism(inp, src, tgt, tmp, alone)
+        lines += ["", f"Determinism ({label}, {det['documents']} documents): against a plain run, "
+                  f"`--jobs 2 --batch-docs 20` gives {det['jobs 2']} differing documents, `--batch-docs 7` "
+                  f"{det['batch-docs 7']}, and document {alone} scored alone {det['alone']}.", ""]
+    return lines
+
+
+def main() -> None:  # pragma: no cover - for running the section alone
+    data = Path(sys.argv[1]) if len(sys.argv) > 1 else Path("../shared/ud-pud")
+    realmt = Path(sys.argv[2]) if len(sys.argv) > 2 else Path("../shared/wmt24-en-es-dev")
+    print("\n".join(speed_section(data, realmt)))
+
+
+if __name__ == "__main__":  # pragma: no cover
+    main()
