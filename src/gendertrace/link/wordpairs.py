@@ -31,6 +31,9 @@ COGNATE_PREFIX = 0.6  # shared de-accented prefix, as a share of the longer word
 # Coarse word classes: a noun may translate as a proper noun, an auxiliary as a verb.
 CLASS = {"PROPN": "NOUN", "AUX": "VERB", "SCONJ": "CCONJ"}
 SKIP = {"PUNCT", "SYM", "X", "SPACE"}
+# Pronouns are paired by the anchors, which weigh their type, person, number and gender: a pronoun they left
+# unpaired has no counterpart of its kind, so the part of speech alone does not pair it either.
+PAIRED_APART = {"PRON"}
 
 
 @cache
@@ -109,7 +112,7 @@ class WordPairAligner:
                     join = LISTED
                 elif _cognate(s_plain, t_plain):
                     join = COGNATE
-                elif s_class == t_class:
+                elif s_class == t_class and s_class not in PAIRED_APART:
                     join = SAME_CLASS
                 else:
                     continue
