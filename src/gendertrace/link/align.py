@@ -1,8 +1,10 @@
-"""Word alignment of each segment pair: statistical (eflomal, trained on the batch itself) plus anchored links.
+"""Word alignment of each segment pair: the anchored links, merged with a statistical aligner's links.
 
-Statistical alignment needs data: on a batch of fewer than MIN_STATISTICAL segments it is skipped and the
-anchors (identical words, the person-noun lexicon, pronoun correspondences) and a positional fallback for verbs
-carry the linking alone.
+The statistical aligner is the Scorer's hook. By default it is the fixed word-pair model of
+`gendertrace.link.wordpairs` (deterministic, each segment on its own); `statistical_alignments` below is the opt-in
+eflomal sampler trained on the batch itself, which needs data: on a batch of fewer than MIN_STATISTICAL segments it
+is skipped and the anchors (identical words, the person-noun lexicon, pronoun correspondences) and a positional
+fallback for verbs carry the linking alone.
 """
 
 from __future__ import annotations
