@@ -141,7 +141,8 @@ def symmetrise(fwd: set[tuple[int, int]], rev: set[tuple[int, int]]) -> Alignmen
     src_done = {i for i, _ in out}
     tgt_done = {j for _, j in out}
     for i, j in sorted(union - inter):
-        near = any(abs(i - a) <= 1 and abs(j - b) <= 1 for a, b in out)
+        # A link next to one already taken (the eight neighbouring cells), looked up rather than scanned.
+        near = any((i + di, j + dj) in out for di in (-1, 0, 1) for dj in (-1, 0, 1))
         if near or i not in src_done or j not in tgt_done:
             out.add((i, j))
             src_done.add(i)
