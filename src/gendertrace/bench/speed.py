@@ -26,6 +26,7 @@ SCORE = [sys.executable, "-m", "gendertrace.cli", "score"]
 DOC_LENGTHS = (1, 5, 20, 50, 2000)  # segments per document; 2000 segments in all for each
 SEGMENT_KB = (0.5, 2, 10, 50, 200)  # size of the one source segment of a one-segment document
 GROWTH_TIMEOUT = 180.0  # seconds a growth run may take before it is reported as unfinished
+COREF_LIMIT = 10.0  # seconds of coreference on one size after which larger sizes skip it
 # Parses both sides of a JSONL/TSV input with the spaCy pipelines alone, as the scorer would load them.
 _SPACY_ONLY = (
     "import sys\n"
@@ -140,6 +141,39 @@ def segment_length_growth(tmp: Path) -> list[tuple[float, int, float | None]]:
         t = _run(score_cmd(inp, tmp / f"seglen-{kb}.jsonl", "es", "en", "--jobs", "1", "--no-cache"),
                  GROWTH_TIMEOUT)
         out.append((kb, chars, None if t is None else max(t - base, 0.0) / chars))
+    return out
+
+
+def stage_growth(kbs: tuple[float, ...] = SEGMENT_KB) -> list[tuple[float, int, float, float, float | None]]:
+    """(KB asked, source characters, parse, alignment and mention-plus-coreference microseconds per character)
+    of one invented es-en segment of each size, in this process; coreference is skipped (None) once one size
+    took longer than COREF_LIMIT seconds (its cost grows faster than the text)."""
+    from gendertrace.link.align import anchor_alignment
+    from gendertrace.mentions.extract import extract_mentions
+    from gendertrace.pipeline import Scorer, _chains_with_singular_they
+
+    scorer = Scorer("es", "en")
+    out, coref_ok = [], True
+    for kb in kbs:
+        path = Path(tempfile.mkdtemp(prefix="gendertrace-growth-")) / "one.tsv"
+        chars = write_invented(path, 1, 1, max(1, round(kb * 1024 / 60)))
+        from gendertrace.io.readers import read_corpus
+
+        doc = read_corpus(path)[0]
+        t0 = time.perf_counter()
+        (pd,) = scorer.parse([doc])
+        t1 = time.perf_counter()
+        scorer.statistical_aligner(pd.source, pd.target)
+        anchor_alignment(pd.source[0], pd.target[0], scorer.lexicon, scorer.pairs, scorer.src_rules,
+                         scorer.tgt_rules)
+        t2 = time.perf_counter()
+        coref = None
+        if coref_ok:
+            mentions = extract_mentions(pd.target[0], 0, "1", "target", scorer.tgt_rules)
+            _chains_with_singular_they(mentions, pd.target, "target", False, scorer.tgt_rules)
+            coref = (time.perf_counter() - t2) * 1e6 / chars
+            coref_ok = time.perf_counter() - t2 < COREF_LIMIT
+        out.append((kb, chars, (t1 - t0) * 1e6 / chars, (t2 - t1) * 1e6 / chars, coref))
     return out
 
 
@@ -302,6 +336,13 @@ def speed_section(data_dir: Path, realmt_dir: Path, treebank_tsv: Path | None = 
         for kb, chars, per in segment_length_growth(tmp):
             cell = f"did not finish in {GROWTH_TIMEOUT:.0f} s" if per is None else f"{1e6 * per:.1f}"
             lines.append(f"| {kb} | {chars} | {cell} |")
+        lines += ["", "The same segments in this process, stage by stage (microseconds per character; parse is both "
+                  "sides, alignment the fixed aligner and the anchors, coreference the target side's mentions and "
+                  "chains).", "", "| KB asked | source characters | parse | alignment | mentions and coreference |",
+                  "|---:|---:|---:|---:|---:|"]
+        for kb, chars, parse_us, align_us, coref_us in stage_growth():
+            cell = "not run (the size before took too long)" if coref_us is None else f"{coref_us:.1f}"
+            lines.append(f"| {kb} | {chars} | {parse_us:.1f} | {align_us:.2f} | {cell} |")
         label, inp, src, tgt, _ = corpora[0]
         from gendertrace.io.readers import read_corpus
 
