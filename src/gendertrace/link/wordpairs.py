@@ -99,16 +99,18 @@ class WordPairAligner:
         for j, tw in enumerate(t_side):
             if tw is None:
                 continue
-            t_keys, t_plain, t_class = tw
+            t_keys, t_plain, t_class, t_case = tw
             centre = round(j * ns / nt)
             for i in range(max(0, centre - BAND), min(len(s_side), centre + BAND + 1)):
                 sw = s_side[i]
                 if sw is None:
                     continue
-                s_keys, s_plain, s_class = sw
+                s_keys, s_plain, s_class, s_case = sw
                 if s_plain == t_plain:
                     join = IDENTICAL
-                elif any((a, b) in pairs for a in s_keys for b in t_keys):
+                elif any((a, b) in pairs for a in s_keys for b in t_keys) and not (s_case and t_case
+                                                                                  and s_case != t_case):
+                    # A pronoun's lemma drops its case ("La" -> "él"): pronouns of two cases are no translation.
                     join = LISTED
                 elif _cognate(s_plain, t_plain):
                     join = COGNATE
@@ -129,11 +131,12 @@ class WordPairAligner:
         return symmetrise(fwd, rev)
 
     @staticmethod
-    def _word(t) -> tuple[tuple[str, ...], str, str] | None:
+    def _word(t) -> tuple[tuple[str, ...], str, str, str | None] | None:
         if t.upos in SKIP:
             return None
         form, lemma = t.text.lower(), (t.lemma or t.text).lower()
-        return (form,) if lemma == form else (form, lemma), _plain(form), CLASS.get(t.upos, t.upos)
+        keys = (form,) if lemma == form else (form, lemma)
+        return keys, _plain(form), CLASS.get(t.upos, t.upos), t.feat("Case") if t.upos == "PRON" else None
 
 
 def default_aligner(src_lang: str, tgt_lang: str) -> WordPairAligner:
