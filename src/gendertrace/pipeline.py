@@ -13,8 +13,9 @@ from gendertrace.declared.policy import Policy
 from gendertrace.declared.sheet import EntitySheet
 from gendertrace.evidence.stage import gather_evidence
 from gendertrace.findings.stage import judge
-from gendertrace.link.align import anchor_alignment, merge, statistical_alignments
+from gendertrace.link.align import anchor_alignment, merge
 from gendertrace.link.stage import link_sides
+from gendertrace.link.wordpairs import default_aligner
 from gendertrace.mentions.names import recognises
 from gendertrace.mentions.stage import find_mentions
 from gendertrace.model import Document, DocumentResult, ParsedDocument, ParsedText
@@ -97,9 +98,10 @@ class Scorer:
         self.tgt_parser = tgt_parser or get_parser(tgt_lang, s.parser, s.tgt_model)
         # The stages, in order: each reads and writes the document's Analysis (docs/design.md).
         self.stages: list[Stage] = list(STAGES)
-        # Hook: the batch's statistical aligner; gendertrace.scale swaps in priors, threads or a frozen model.
+        # Hook: the batch's statistical aligner, by default a fixed model that aligns each segment on its own
+        # (deterministic); gendertrace.scale swaps in eflomal sampled per batch or a frozen model.
         self.statistical_aligner: Callable[[Sequence[ParsedText], Sequence[ParsedText]], list | None] = (
-            statistical_alignments
+            default_aligner(src_lang, tgt_lang)
         )
 
     def signature(self) -> dict:
@@ -112,6 +114,7 @@ class Scorer:
             "min_confidence": self.settings.min_confidence,
             "policy": self.settings.policy.to_json(),
             "entity_sheet": self.settings.entity_sheet.digest if self.settings.entity_sheet else None,
+            "alignment": getattr(self.statistical_aligner, "label", "custom"),
         }
 
     def parse(self, docs: Sequence[Document]) -> list[ParsedDocument]:

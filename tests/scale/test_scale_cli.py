@@ -44,8 +44,8 @@ def test_saving_priors_from_the_frozen_model_is_refused(tmp_path):
 def test_the_cache_line_and_the_priors_line_report_what_happened(tmp_path):
     inp = demo_copies(tmp_path / "twice.tsv", 2)
     n, segments = demo_size()
-    args = ("--cache", str(tmp_path / "cache"), "--batch-docs", str(2 * n), "--save-align-priors",
-            str(tmp_path / "es-en.priors"), "--jobs", "1")
+    args = ("--cache", str(tmp_path / "cache"), "--batch-docs", str(2 * n), "--align-mode", "sampled",
+            "--save-align-priors", str(tmp_path / "es-en.priors"), "--jobs", "1")
     first = _score(tmp_path, *args, inp=inp)
     assert first.exit_code == 0, first.output
     # Two copies: 4 segment sides per segment pair of the file; each distinct text is parsed once.
@@ -59,7 +59,7 @@ def test_the_cache_line_and_the_priors_line_report_what_happened(tmp_path):
 
 @pytest.mark.slow
 def test_no_priors_are_written_when_no_batch_was_aligned_statistically(tmp_path):
-    result = _score(tmp_path, "--no-cache", "--batch-docs", "2", "--save-align-priors",
+    result = _score(tmp_path, "--no-cache", "--batch-docs", "2", "--align-mode", "sampled", "--save-align-priors",
                     str(tmp_path / "es-en.priors"))
     assert result.exit_code == 0, result.output
     assert "no alignment priors written" in result.stderr

@@ -53,7 +53,8 @@ def test_dask_and_local_agree_with_statistical_alignment_fixed_by_a_frozen_model
     inp = demo_copies(tmp_path / "twice.tsv", 2)
     n, _ = demo_size()
     priors = tmp_path / "es-en.priors"
-    score_file(inp, tmp_path / "learn.jsonl", ScoringPlan("es", "en", batch_docs=2 * n, learn_priors=True),
+    score_file(inp, tmp_path / "learn.jsonl", ScoringPlan("es", "en", batch_docs=2 * n, align_mode="sampled",
+                                                                  learn_priors=True),
                save_align_priors=priors)
     assert priors.is_file()
     plan = ScoringPlan("es", "en", batch_docs=3, align_mode="frozen", align_priors=str(priors))

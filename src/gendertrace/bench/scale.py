@@ -31,6 +31,7 @@ REVERSE = ("en", "es")  # the second engine version is measured both ways
 COPIES = 3  # copies in the distinct corpus
 BATCH = 81  # documents per batch there: 645 documents make 8 batches, 4 per worker
 SCORE = [sys.executable, "-m", "gendertrace.cli", "score"]
+SAMPLED = ("--align-mode", "sampled")  # eflomal per batch: the rows below that learn or use priors measure it
 
 # Runs a command and prints its exit status and the peak resident memory of its process tree (in KiB).
 _MEASURE = (
@@ -192,6 +193,10 @@ def scale_section(data_dir: str | Path, repeats: int = 2) -> list[str]:
     load_before = os.getloadavg()[0]
     with tempfile.TemporaryDirectory(prefix="gendertrace-scale-") as tmp:
         lines += _measure_all(data_dir, Path(tmp), repeats)
+    from gendertrace.bench.speed import speed_section
+
+    # The real MT dev set sits beside the treebank folder (../shared).
+    lines += speed_section(data_dir, data_dir.parent / "wmt24-en-es-dev")
     lines += [
         f"Command: `make bench` (this section alone: `python -m gendertrace.bench.scale ../shared/ud-pud`). "
         f"Whole section: {time.perf_counter() - started:.0f} s on {os.cpu_count()} cores; load average "
@@ -229,9 +234,9 @@ def _measure_all(data_dir: Path, tmp: Path, repeats: int) -> list[str]:
     batch = ("--batch-docs", str(BATCH))
 
     # Alignment statistics from the whole treebank in one batch, for the frozen models used below.
-    learn = run_score(base, tmp / "learn.jsonl", "--jobs", "1", "--no-cache", "--batch-docs", str(n_base),
+    learn = run_score(base, tmp / "learn.jsonl", *SAMPLED, "--jobs", "1", "--no-cache", "--batch-docs", str(n_base),
                       "--save-align-priors", str(priors))
-    run_score(reverse_base, tmp / "learn-rev.jsonl", "--jobs", "1", "--no-cache", "--batch-docs", str(n_base),
+    run_score(reverse_base, tmp / "learn-rev.jsonl", *SAMPLED, "--jobs", "1", "--no-cache", "--batch-docs", str(n_base),
               "--save-align-priors", str(reverse_priors), direction=REVERSE)
     frozen = ("--align-mode", "frozen", "--align-priors", str(priors))
     frozen_rev = ("--align-mode", "frozen", "--align-priors", str(reverse_priors))
@@ -246,28 +251,29 @@ def _measure_all(data_dir: Path, tmp: Path, repeats: int) -> list[str]:
         with sampled alignment the first run saves its alignment statistics and the second uses them."""
         cache = str(tmp / f"cache-{name}")
         learned = tmp / f"{name}.priors"
-        save, use = ((), ()) if options else (("--save-align-priors", str(learned)), ("--align-priors", str(learned)))
+        save, use = ((), ()) if options else ((*SAMPLED, "--save-align-priors", str(learned)),
+                                              (*SAMPLED, "--align-priors", str(learned)))
         first = run_score(reverse, tmp / f"{name}1.jsonl", "--jobs", "2", "--cache", cache, *batch, *options, *save,
                           direction=REVERSE)
         forget_targets(Path(cache), REVERSE[1])
         return first, run_score(reverse, tmp / f"{name}2.jsonl", "--jobs", "2", "--cache", cache, *batch,
                                 *options, *use, direction=REVERSE)
 
-    # Sampled alignment (the default), each first run with a cold cache of its own: jobs 1, jobs 2, then the
+    # Sampled alignment (opt-in), each first run with a cold cache of its own: jobs 1, jobs 2, then the
     # second engine version after jobs 2 (the sources' parses stay, the targets' are dropped; the alignment
     # statistics the first run saved are its priors); the same in the other direction, where the cached side
     # (English) is the costlier one to parse. Interleaved and repeated; the fastest of each kind is kept.
     # Every first run saves its alignment statistics, so that jobs 1 and jobs 2 do the same work.
     times: dict[str, list[float]] = {k: [] for k in ("jobs1", "jobs2", "second", "first_rev", "second_rev")}
     for r in range(repeats):
-        times["jobs1"].append(run_score(distinct, tmp / "j1.jsonl", "--jobs", "1", "--cache",
+        times["jobs1"].append(run_score(distinct, tmp / "j1.jsonl", *SAMPLED, "--jobs", "1", "--cache",
                                         str(tmp / f"c1-{r}"), *batch, "--save-align-priors",
                                         str(tmp / f"j1-{r}.priors")).seconds)
-        times["jobs2"].append(run_score(distinct, tmp / "j2.jsonl", "--jobs", "2", "--cache",
+        times["jobs2"].append(run_score(distinct, tmp / "j2.jsonl", *SAMPLED, "--jobs", "2", "--cache",
                                         str(tmp / f"c2-{r}"), *batch, "--save-align-priors",
                                         str(tmp / f"j2-{r}.priors")).seconds)
         forget_targets(tmp / f"c2-{r}", DIRECTION[1])
-        times["second"].append(run_score(distinct, tmp / "v2.jsonl", "--jobs", "2", "--cache",
+        times["second"].append(run_score(distinct, tmp / "v2.jsonl", *SAMPLED, "--jobs", "2", "--cache",
                                          str(tmp / f"c2-{r}"), *batch, "--align-priors",
                                          str(tmp / f"j2-{r}.priors")).seconds)
         first_rev, second_rev = first_and_second((), f"r{r}")
@@ -279,7 +285,7 @@ def _measure_all(data_dir: Path, tmp: Path, repeats: int) -> list[str]:
     dask_missing = False
     try:
         times["dask"] = [_on_cluster(lambda address: run_score(
-            distinct, tmp / "d.jsonl", "--executor", "dask", "--scheduler", address, "--cache",
+            distinct, tmp / "d.jsonl", *SAMPLED, "--executor", "dask", "--scheduler", address, "--cache",
             str(tmp / "cd"), *batch)).seconds]
     except ImportError:
         dask_missing = True

@@ -1,13 +1,17 @@
-"""Word alignment of each segment pair: statistical (eflomal, trained on the batch itself) plus anchored links.
+"""Word alignment of each segment pair: the anchored links, merged with a statistical aligner's links.
 
-Statistical alignment needs data: on a batch of fewer than MIN_STATISTICAL segments it is skipped and the
-anchors (identical words, the person-noun lexicon, pronoun correspondences) and a positional fallback for verbs
-carry the linking alone.
+The statistical aligner is the Scorer's hook. By default it is the fixed word-pair model of
+`gendertrace.link.wordpairs` (deterministic, each segment on its own); `statistical_alignments` below is the opt-in
+eflomal sampler trained on the batch itself, which needs data: on a batch of fewer than MIN_STATISTICAL segments it
+is skipped and the anchors (identical words, the person-noun lexicon, pronoun correspondences) and a positional
+fallback for verbs carry the linking alone.
 """
 
 from __future__ import annotations
 
+import bisect
 import logging
+import math
 import os
 import tempfile
 from collections.abc import Callable, Iterator, Sequence
@@ -29,8 +33,10 @@ DEFAULT_REL_ITERATIONS = 1.0
 Alignment = frozenset[tuple[int, int]]  # (source token index, target token index)
 # How much a pronoun pair's score loses per unit of relative-position difference (0 to 1 across the segment).
 POSITION_WEIGHT = 3.5
-# Target pronouns of one segment up to which the pronoun pairing is solved exactly.
-MAX_EXACT = 12
+# Pronouns (on the smaller side) of one segment up to which the pronoun pairing is solved exactly.
+MAX_EXACT = 60
+# Tokens on either side of a source word's diagonal position within which anchors are sought.
+ANCHOR_BAND = 100
 
 
 def _words(p: ParsedText) -> list[str]:
@@ -135,7 +141,8 @@ def symmetrise(fwd: set[tuple[int, int]], rev: set[tuple[int, int]]) -> Alignmen
     src_done = {i for i, _ in out}
     tgt_done = {j for _, j in out}
     for i, j in sorted(union - inter):
-        near = any(abs(i - a) <= 1 and abs(j - b) <= 1 for a, b in out)
+        # A link next to one already taken (the eight neighbouring cells), looked up rather than scanned.
+        near = any((i + di, j + dj) in out for di in (-1, 0, 1) for dj in (-1, 0, 1))
         if near or i not in src_done or j not in tgt_done:
             out.add((i, j))
             src_done.add(i)
@@ -158,6 +165,8 @@ def anchor_alignment(
     positions counts against the score, POSITION_WEIGHT per unit);
     weak: each target verb to the source verb at the nearest relative position in the segment.
     With the languages' rules given, impersonal pronouns ("il faut", "it seems") are never paired.
+    In a segment longer than 2 x ANCHOR_BAND tokens, a source word is compared only with the target words within
+    ANCHOR_BAND tokens of its diagonal position, so the cost grows linearly with the segment.
     """
     from gendertrace.mentions.extract import is_expletive
     from gendertrace.rules.loader import pronoun_key
@@ -171,49 +180,76 @@ def anchor_alignment(
     src_impersonal, tgt_impersonal = impersonal(src, src_rules), impersonal(tgt, tgt_rules)
     s_toks, t_toks = src.tokens, tgt.tokens
     ns, nt = max(len(s_toks), 1), max(len(t_toks), 1)
+    # Target positions by lower-cased form, and the pronoun-like target tokens with their keys, each in order.
+    by_form: dict[str, list[int]] = {}
+    t_prons: list[tuple[int, str]] = []
+    for t in t_toks:
+        if t.upos == "PUNCT":
+            continue
+        tl = t.text.lower()
+        by_form.setdefault(tl, []).append(t.i)
+        if _pronoun_like(t) and t.i not in tgt_impersonal:
+            t_prons.append((t.i, pronoun_key(tl)))
+    t_pron_pos = [j for j, _ in t_prons]
+
+    def window(i: int) -> tuple[int, int]:
+        centre = i * nt / ns
+        return math.floor(centre - ANCHOR_BAND), math.ceil(centre + ANCHOR_BAND)
+
     pron_cands = []
-    t_lower = [t.text.lower() for t in t_toks]
-    t_keys = [pronoun_key(x) if _pronoun_like(t) and t.i not in tgt_impersonal else None
-              for x, t in zip(t_lower, t_toks, strict=True)]
     for s in s_toks:
+        if s.upos == "PUNCT":
+            continue
+        lo, hi = window(s.i)
         sl = s.text.lower()
-        s_key = pronoun_key(sl) if _pronoun_like(s) and s.i not in src_impersonal else None
-        for t, tl, t_key in zip(t_toks, t_lower, t_keys, strict=True):
-            if s.upos == "PUNCT" or t.upos == "PUNCT":
+        forms = set(lexicon.get(sl, ()))
+        if s.upos in ("PROPN", "NUM") or len(sl) > 3:
+            forms.add(sl)
+        for form in forms:
+            positions = by_form.get(form, ())
+            for k in range(bisect.bisect_left(positions, lo), bisect.bisect_right(positions, hi)):
+                links.add((s.i, positions[k]))
+        if not _pronoun_like(s) or s.i in src_impersonal:
+            continue
+        s_key = pronoun_key(sl)
+        for k in range(bisect.bisect_left(t_pron_pos, lo), bisect.bisect_right(t_pron_pos, hi)):
+            j, t_key = t_prons[k]
+            score = pronoun_pairs.get((s_key, t_key))
+            if score is None or (s.i, j) in links:
                 continue
-            if (sl == tl and (s.upos in ("PROPN", "NUM") or len(sl) > 3)) or tl in lexicon.get(sl, ()):
-                links.add((s.i, t.i))
-                continue
-            score = pronoun_pairs.get((s_key, t_key)) if s_key is not None and t_key is not None else None
-            if score is not None:
-                # Position counts against the score: a same-gender pronoun across the sentence must not win
-                # over the pronoun in the same place ("..., he says" / "..., affirme-t-elle").
-                dist = abs(s.i / ns - t.i / nt)
-                pron_cands.append((-(score - POSITION_WEIGHT * dist), dist, s.i, t.i))
+            # Position counts against the score: a same-gender pronoun across the sentence must not win over
+            # the pronoun in the same place ("..., he says" / "..., affirme-t-elle").
+            dist = abs(s.i / ns - j / nt)
+            pron_cands.append((-(score - POSITION_WEIGHT * dist), dist, s.i, j))
     links |= _best_pairing(pron_cands)
     # Verbs by relative position: a weak fallback used only where no other link covers the verb.
     weak = set()
-    s_verbs = [s for s in s_toks if s.upos in ("VERB", "AUX")]
-    t_verbs = [t for t in t_toks if t.upos in ("VERB", "AUX")]
+    s_verbs = [s.i for s in s_toks if s.upos in ("VERB", "AUX")]
+    t_verbs = [t.i for t in t_toks if t.upos in ("VERB", "AUX")]
     if len(s_verbs) == 1 and len(t_verbs) == 1:
-        weak.add((s_verbs[0].i, t_verbs[0].i))  # one verb on each side: they translate each other
+        weak.add((s_verbs[0], t_verbs[0]))  # one verb on each side: they translate each other
     elif s_verbs and t_verbs:
-        for t in t_verbs:
-            best = min(s_verbs, key=lambda s: abs(s.i / ns - t.i / nt))
-            if abs(best.i / ns - t.i / nt) < 0.2:
-                weak.add((best.i, t.i))
+        s_rel = [i / ns for i in s_verbs]
+        for j in t_verbs:
+            rel = j / nt
+            k = bisect.bisect_left(s_rel, rel)
+            # The nearest source verb, the earlier one on a tie.
+            near = [c for c in (k - 1, k) if 0 <= c < len(s_rel)]
+            best = min(near, key=lambda c: (abs(s_rel[c] - rel), c))
+            if abs(s_rel[best] - rel) < 0.2:
+                weak.add((s_verbs[best], j))
     return frozenset(links), frozenset(weak)
 
 
 def _best_pairing(cands: list[tuple[float, float, int, int]]) -> set[tuple[int, int]]:
-    """One-to-one pronoun pairs with the best total score (an assignment problem): a greedy choice would give
-    "he" the "il" about a thing and leave "it" and "-elle" unpaired. Exact for up to MAX_EXACT pronouns on the
-    target side (far more than a sentence has), greedy beyond."""
+    """One-to-one pronoun pairs with the best total score (an assignment problem, solved exactly by the Hungarian
+    method): a greedy choice would give "he" the "il" about a thing and leave "it" and "-elle" unpaired. Beyond
+    MAX_EXACT pronouns on the smaller side (far more than a paragraph has) pairs are chosen greedily, best first."""
     if not cands:
         return set()
     src_ids = sorted({i for _, _, i, _ in cands})
     tgt_ids = sorted({j for _, _, _, j in cands})
-    if len(tgt_ids) > MAX_EXACT:
+    if min(len(src_ids), len(tgt_ids)) > MAX_EXACT:
         out, used_s, used_t = set(), set(), set()
         for _, _, i, j in sorted(cands):
             if i not in used_s and j not in used_t:
@@ -221,24 +257,63 @@ def _best_pairing(cands: list[tuple[float, float, int, int]]) -> set[tuple[int, 
                 used_s.add(i)
                 used_t.add(j)
         return out
-    col = {j: k for k, j in enumerate(tgt_ids)}
     offset = POSITION_WEIGHT + 4.0  # every candidate pair weighs more than no pair
-    options: dict[int, list[tuple[int, float]]] = {i: [] for i in src_ids}
+    weight: dict[tuple[int, int], float] = {}
     for neg_score, _, i, j in cands:
-        options[i].append((col[j], offset - neg_score))
-    # best[mask] = (total, pairs) over the source pronouns seen so far, with the target pronouns in mask used.
-    best: dict[int, tuple[float, tuple[tuple[int, int], ...]]] = {0: (0.0, ())}
-    for i in src_ids:
-        step = dict(best)  # this source pronoun may stay unpaired
-        for mask, (total, pairs) in best.items():
-            for k, w in options[i]:
-                if mask & (1 << k):
+        weight[(i, j)] = max(weight.get((i, j), 0.0), offset - neg_score)
+    rows, cols = (src_ids, tgt_ids) if len(src_ids) <= len(tgt_ids) else (tgt_ids, src_ids)
+    flipped = rows is tgt_ids
+    cost = [[-weight.get((c, r) if flipped else (r, c), 0.0) for c in cols] for r in rows]
+    out = set()
+    for r, c in enumerate(_assignment(cost)):
+        pair = (cols[c], rows[r]) if flipped else (rows[r], cols[c])
+        if pair in weight:
+            out.add(pair)
+    return out
+
+
+def _assignment(cost: list[list[float]]) -> list[int]:
+    """For each row of a cost matrix with no more rows than columns, its column in a minimum-cost assignment
+    (the Hungarian method with potentials, O(rows^2 x columns))."""
+    n, m = len(cost), len(cost[0])
+    inf = float("inf")
+    u, v = [0.0] * (n + 1), [0.0] * (m + 1)
+    owner = [0] * (m + 1)  # owner[c]: the row (1-based) assigned to column c, 0 for none
+    way = [0] * (m + 1)
+    for r in range(1, n + 1):
+        owner[0] = r
+        c0 = 0
+        minv = [inf] * (m + 1)
+        used = [False] * (m + 1)
+        while True:
+            used[c0] = True
+            r0, delta, c1 = owner[c0], inf, 0
+            for c in range(1, m + 1):
+                if used[c]:
                     continue
-                key, value = mask | (1 << k), (total + w, pairs + ((i, tgt_ids[k]),))
-                if key not in step or value[0] > step[key][0]:
-                    step[key] = value
-        best = step
-    return set(max(best.values(), key=lambda v: (v[0], [(-a, -b) for a, b in v[1]]))[1])
+                cur = cost[r0 - 1][c - 1] - u[r0] - v[c]
+                if cur < minv[c]:
+                    minv[c], way[c] = cur, c0
+                if minv[c] < delta:
+                    delta, c1 = minv[c], c
+            for c in range(m + 1):
+                if used[c]:
+                    u[owner[c]] += delta
+                    v[c] -= delta
+                else:
+                    minv[c] -= delta
+            c0 = c1
+            if owner[c0] == 0:
+                break
+        while c0:
+            c1 = way[c0]
+            owner[c0] = owner[c1]
+            c0 = c1
+    out = [0] * n
+    for c in range(1, m + 1):
+        if owner[c]:
+            out[owner[c] - 1] = c - 1
+    return out
 
 
 def _pronoun_like(t) -> bool:

@@ -18,7 +18,7 @@ from gendertrace.pipeline import Scorer, ScoreSettings
 from gendertrace.scale.priors import make_aligner
 from gendertrace.settings import DEFAULT_BATCH_DOCS, DEFAULT_MIN_CONFIDENCE
 
-ALIGN_MODES: tuple[str, ...] = ("sampled", "frozen")
+ALIGN_MODES: tuple[str, ...] = ("fixed", "sampled", "frozen")
 
 
 @dataclass(frozen=True)
@@ -36,7 +36,7 @@ class ScoringPlan:
     batch_docs: int = DEFAULT_BATCH_DOCS
     cache_dir: str | None = None  # None: no parse cache
     cache_max_mb: float | None = None
-    align_mode: str = "sampled"
+    align_mode: str = "fixed"
     align_priors: str | None = None
     align_threads: int | None = None  # OpenMP threads of eflomal in each worker (None: eflomal's default)
     learn_priors: bool = False
@@ -50,6 +50,8 @@ class ScoringPlan:
             raise ValueError(f"unknown alignment mode {self.align_mode!r} (expected one of {ALIGN_MODES})")
         if self.align_mode == "frozen" and not self.align_priors:
             raise ValueError("frozen alignment needs a priors file (align_priors)")
+        if self.learn_priors and self.align_mode != "sampled":
+            raise ValueError("alignment priors are learned by the sampled aligner only (align_mode 'sampled')")
 
 
 def build_scorer(plan: ScoringPlan) -> Scorer:
@@ -67,7 +69,7 @@ def build_scorer(plan: ScoringPlan) -> Scorer:
     tgt = _side_parser(plan.tgt_lang, plan.parser, plan.tgt_model, plan.tgt_conllu, cache)
     scorer = Scorer(plan.src_lang, plan.tgt_lang, settings, src, tgt)
     scorer.statistical_aligner = make_aligner(plan.align_mode, plan.align_priors, plan.align_threads,
-                                              plan.learn_priors)
+                                              plan.learn_priors, plan.src_lang, plan.tgt_lang)
     return scorer
 
 

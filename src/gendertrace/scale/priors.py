@@ -182,15 +182,21 @@ class FrozenAligner:
         return symmetrise(fwd, rev)
 
 
-def make_aligner(mode: str, priors: str | None, threads: int | None, learn: bool):
-    """The aligner for a run: "sampled" (eflomal per batch, priors optional) or "frozen" (needs priors)."""
+def make_aligner(mode: str, priors: str | None, threads: int | None, learn: bool, src_lang: str = "",
+                 tgt_lang: str = ""):
+    """The aligner for a run: "fixed" (the default: the shipped word pairs of the language pair, each segment
+    on its own), "sampled" (eflomal per batch, priors optional; random) or "frozen" (needs priors)."""
+    if mode == "fixed":
+        from gendertrace.link.wordpairs import WordPairAligner
+
+        return WordPairAligner(src_lang, tgt_lang)
     if mode == "frozen":
         if not priors:
             raise ValueError("frozen alignment needs a priors file")
         return FrozenAligner(priors)
     if mode == "sampled":
         return SampledAligner(priors, threads, learn)
-    raise ValueError(f"unknown alignment mode {mode!r} (expected 'sampled' or 'frozen')")
+    raise ValueError(f"unknown alignment mode {mode!r} (expected 'fixed', 'sampled' or 'frozen')")
 
 
 __all__ = ["FrozenAligner", "PriorCounts", "SampledAligner", "make_aligner", "priors_digest", "read_lexical"]
