@@ -11,6 +11,10 @@ import click
 from gendertrace import __version__
 from gendertrace.errors import GendertraceError
 
+# Exit statuses of `score --fail-under`: the rate is below the bar; nothing was checkable (no rate at all).
+GATE_EXIT = 3
+NOTHING_CHECKED_EXIT = 4
+
 
 def _fail(exc: Exception) -> None:
     raise click.ClickException(str(exc)) from exc
@@ -26,11 +30,30 @@ def _scorer(src_lang, tgt_lang, parser, src_model, tgt_model, src_conllu, tgt_co
     return Scorer(src_lang, tgt_lang, settings, src_parser, tgt_parser)
 
 
+def _language(ctx, param, value: str | None) -> str | None:
+    """A language code, lower-cased, that has a rules file (named without the installation's path)."""
+    if value is None:
+        return None
+    from gendertrace.rules.loader import rules_dir
+
+    code = value.strip().lower()
+    have = sorted(p.stem for p in rules_dir().glob("*.yaml") if p.stem.isalpha() and 2 <= len(p.stem) <= 3)
+    option = "--src-lang" if param.name == "src_lang" else "--tgt-lang"
+    if code not in have:
+        raise click.ClickException(f"{option}: no rules for language {value!r} (no {code}.yaml among the "
+                                   f"rules; rules exist for: {', '.join(have)})")
+    if param.name == "tgt_lang" and ctx.params.get("src_lang") == code:
+        raise click.ClickException(f"--tgt-lang: {code!r} is also the source language: a translation goes "
+                                   f"from one language to another")
+    return code
+
+
 def _common_options(f):
     options = [
-        click.option("--src-lang", "-s", required=True,
-                     help="Source language code (en, es, fr; de/it/pt need CoNLL-U)."),
-        click.option("--tgt-lang", "-t", required=True, help="Target language code."),
+        click.option("--src-lang", "-s", required=True, is_eager=True, callback=_language,
+                     help="Source language code, any case (en, es, fr; de/it/pt need CoNLL-U)."),
+        click.option("--tgt-lang", "-t", required=True, callback=_language,
+                     help="Target language code, other than the source's."),
         click.option("--format", "fmt", type=click.Choice(["tsv", "csv", "jsonl", "xliff", "tmx"]), default=None,
                      help="Input format; by default taken from the file extension (.tsv .csv .jsonl .xlf .tmx)."),
         click.option("--parser", type=click.Choice(["spacy", "stanza"]), default="spacy", show_default=True,
@@ -116,7 +139,9 @@ def main() -> None:
 @click.option("--out", "-o", required=True, type=click.Path(dir_okay=False),
               help="Results, one JSON object per document.")
 @click.option("--fail-under", type=click.FloatRange(0, 1), default=None,
-              help="Exit with status 3 when the corpus consistency rate is below RATE (for CI gates).")
+              help=f"Exit with status {GATE_EXIT} when the corpus consistency rate is below RATE (for CI "
+                   f"gates), and with status {NOTHING_CHECKED_EXIT} when nothing was checkable (the rate is "
+                   f"n/a, so the gate can neither pass nor fail).")
 @click.option("--progress/--no-progress", default=None,
               help="Progress bar on stderr (default: when it is a terminal).")
 @click.option("--quiet", "-q", is_flag=True, help="Do not print the summary.")
@@ -146,8 +171,13 @@ def main() -> None:
               help="Write the alignment statistics this run learns (sampled mode) as a priors file; "
                    "after --resume it covers the batches scored by this invocation.")
 @click.option("--resume", is_flag=True,
-              help="Continue an interrupted run: documents complete in OUT are kept and skipped, a "
-                   "half-written last line is cut off. The settings must be those the run started with.")
+              help="Continue an interrupted run: results stream into OUT.part (beside OUT, with "
+                   "OUT.part.signature.json and OUT.part.digests) and are renamed to OUT only when the run "
+                   "is complete, so a killed or failed run leaves OUT as it was and its results so far in "
+                   "OUT.part. --resume continues OUT.part (or, without one, the complete OUT): documents "
+                   "complete there are kept and skipped, a half-written last line is cut off. The settings "
+                   "must be those the run started with, and the kept documents' input rows unchanged "
+                   "(checked by their digests).")
 @click.option("--executor", type=click.Choice(["local", "dask"]), default="local", show_default=True,
               help="local: this machine (--jobs); dask: tasks on the dask.distributed cluster at "
                    "--scheduler.")
@@ -163,9 +193,11 @@ def score(input_path, src_lang, tgt_lang, fmt, parser, src_model, tgt_model, src
           entities, policy_file, neutral_for_binary, assumption_kinds):
     """Score a translated document set INPUT (TSV, CSV or JSONL with doc_id, seg_id, source, target).
 
-    Writes OUT (one JSON object per document, in input order, each line as soon as it is ready) and OUT's
-    signature beside it (OUT.signature.json), and prints a summary: documents, entities, findings by kind and
-    the corpus consistency rate (consistent gendered target references over checked ones).
+    Writes OUT (one JSON object per document, in input order, each line as soon as it is ready), OUT's
+    signature beside it (OUT.signature.json) and the digests of the documents' input rows (OUT.digests), and
+    prints a summary: documents, entities, findings by kind and the corpus consistency rate (consistent
+    gendered target references over checked ones). INPUT is read through and checked before anything is
+    written; no output may be one of the inputs. Lines stream into OUT.part, renamed to OUT when complete.
 
     Documents stream through in batches of --batch-docs, so memory stays flat however large INPUT is; rows of
     one document should be consecutive (otherwise INPUT is gathered in memory first). Parses are cached on
@@ -228,9 +260,13 @@ def score(input_path, src_lang, tgt_lang, fmt, parser, src_model, tgt_model, src
         else:
             click.echo("no alignment priors written: no batch was large enough for statistical alignment "
                        "(raise --batch-docs)", err=True)
-    if fail_under is not None and summary.rate is not None and summary.rate < fail_under:
+    if fail_under is not None and summary.rate is None:
+        click.echo(f"consistency rate n/a: no gendered target reference of {input_path} could be checked "
+                   f"against evidence, so --fail-under {fail_under:.3f} can neither pass nor fail", err=True)
+        sys.exit(NOTHING_CHECKED_EXIT)
+    if fail_under is not None and summary.rate < fail_under:
         click.echo(f"consistency rate {summary.rate:.3f} is below --fail-under {fail_under:.3f}", err=True)
-        sys.exit(3)
+        sys.exit(GATE_EXIT)
 
 
 @main.command()
@@ -265,9 +301,16 @@ def explain(input_path, doc_id, src_lang, tgt_lang, fmt, parser, src_model, tgt_
               help="Demo corpus folder (default: corpora/demo of the repository).")
 def demo(out, corpus):
     """Score the bundled demo corpus (every direction, both engine versions) and compare with its gold."""
-    from gendertrace.demo import run_demo
+    from gendertrace.demo import demo_dir, run_demo
+    from gendertrace.io.outputs import check_outputs
+    from gendertrace.scale.resume import RunFiles
 
+    folder = Path(corpus) if corpus else demo_dir()
     try:
+        inputs = [("--corpus", folder)] + [("a corpus file", p) for p in sorted(folder.rglob("*")) if p.is_file()]
+        results = [RunFiles.for_output(Path(out) / f"{p.stem}.jsonl") for p in folder.glob("*-*.v*.tsv")]
+        check_outputs([("--out", out), ("the history store", Path(out) / "history.db")]
+                      + [item for files in results for item in files.outputs], inputs)
         click.echo(run_demo(Path(out), Path(corpus) if corpus else None))
     except GendertraceError as exc:
         _fail(exc)
@@ -279,18 +322,39 @@ def demo(out, corpus):
 @click.option("--report", default=None, type=click.Path(dir_okay=False), help="Write the tables as Markdown here.")
 @click.option("--directions", default=None, help="Comma-separated directions, e.g. es-en,en-es (default: all).")
 @click.option("--seed", default=13, show_default=True, help="Seed of the error injector.")
-def bench(data, report, directions, seed):
+@click.option("--half", type=click.Choice(["1", "2"]), default=None,
+              help="Treebank figures on one half of the news documents only (split by document id).")
+@click.option("--align-priors", type=click.Path(file_okay=False), default=None,
+              help="Folder of frozen alignment models, one per direction (learned there when missing).")
+@click.option("--realmt", default="../shared/wmt24-en-es-dev", show_default=True, type=click.Path(),
+              help="Folder of real English-Spanish MT output (SYSTEM.jsonl files, reference.jsonl).")
+@click.option("--realmt-systems", default=None, help="Comma-separated systems of --realmt (default: all).")
+@click.option("--only", type=click.Choice(["treebank", "realmt"]), default=None, help="Run one part only.")
+def bench(data, report, directions, seed, half, align_priors, realmt, realmt_systems, only):
     """Measure false alarms and recall on real translations with injected gender errors."""
     from gendertrace.bench.run import run_benchmark
 
-    if not Path(data).is_dir():
+    if only != "realmt" and not Path(data).is_dir():
         click.echo(f"benchmark skipped: no treebank folder at {data}", err=True)
         return
+    if only != "treebank" and not Path(realmt).is_dir():
+        click.echo(f"real MT section skipped: no folder at {realmt}", err=True)
+    from gendertrace.io.outputs import StagedOutputs, check_outputs
+
     try:
-        text = run_benchmark(Path(data), directions.split(",") if directions else None, seed=seed,
-                             report=Path(report) if report else None)
+        check_outputs([("--report", report)],
+                      [("a treebank of --data", p) for p in sorted(Path(data).rglob("*")) if p.is_file()])
+        with StagedOutputs() as staged:
+            text = run_benchmark(Path(data), directions.split(",") if directions else None, seed=seed,
+                                 report=staged.path(report) if report else None, half=int(half) if half else None,
+                                 align_priors=Path(align_priors) if align_priors else None,
+                                 realmt=None if only == "treebank" else Path(realmt),
+                                 realmt_systems=realmt_systems.split(",") if realmt_systems else None,
+                                 treebank=only != "realmt")
     except GendertraceError as exc:
         _fail(exc)
+    except FileNotFoundError as exc:  # a treebank the directions need is not in --data
+        raise click.ClickException(str(exc)) from exc
     click.echo(text)
 
 

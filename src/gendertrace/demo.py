@@ -10,6 +10,7 @@ from pathlib import Path
 from gendertrace.api import Summary, score_file
 from gendertrace.declared.sheet import load_entity_sheet
 from gendertrace.errors import InputError
+from gendertrace.io.outputs import staged_file
 from gendertrace.pipeline import Scorer, ScoreSettings
 
 
@@ -153,8 +154,9 @@ def run_demo(out: Path, corpus: Path | None = None) -> str:
     from gendertrace.history.demo import record_demo
 
     db = out / "history.db"
-    if db.exists():
-        db.unlink()
-    lines += ["", "engine versions (history store):", "", record_demo(out, db, corpus)]
+    with staged_file(db) as tmp:  # rebuilt beside the earlier store, which it replaces only when complete
+        tmp.unlink()
+        recorded = record_demo(out, tmp, corpus).replace(str(tmp.resolve()), str(db.resolve()))
+    lines += ["", "engine versions (history store):", "", recorded]
     lines += ["", f"results written to {out}/ (history store: {db})"]
     return "\n".join(lines)

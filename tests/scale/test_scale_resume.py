@@ -33,7 +33,8 @@ def test_resume_repairs_a_torn_line_and_finishes_the_run(tmp_path):
     score_file(inp, whole, plan)
     lines = whole.read_bytes().splitlines(keepends=True)
     cut.write_bytes(b"".join(lines[:3]) + lines[3][: len(lines[3]) // 2])  # three results and half of one
-    Path(str(cut) + ".signature.json").write_bytes(Path(str(whole) + ".signature.json").read_bytes())
+    for sidecar in (".signature.json", ".digests"):
+        Path(str(cut) + sidecar).write_bytes(Path(str(whole) + sidecar).read_bytes())
     report = score_file_report(inp, cut, plan, resume=True)
     assert report.resumed_after == 3
     assert cut.read_bytes() == whole.read_bytes()
@@ -82,6 +83,7 @@ def test_a_run_killed_mid_way_resumes_to_the_uninterrupted_result(tmp_path):
     inp = demo_copies(tmp_path / "many.tsv", 15)
     total = 15 * demo_size()[0]
     whole, killed = tmp_path / "whole.jsonl", tmp_path / "killed.jsonl"
+    partial = tmp_path / "killed.jsonl.part"  # where a run streams its results until it is complete
     score_file(inp, whole, _plan(tmp_path, batch_docs=1))
 
     # A cold cache of its own keeps the run to be killed slow enough to be caught in the middle.
@@ -89,30 +91,32 @@ def test_a_run_killed_mid_way_resumes_to_the_uninterrupted_result(tmp_path):
                             stderr=subprocess.PIPE)
     deadline = time.monotonic() + 120
     while time.monotonic() < deadline and proc.poll() is None:
-        if killed.exists() and killed.read_bytes().count(b"\n") >= 5:
+        if partial.exists() and partial.read_bytes().count(b"\n") >= 5:
             break
         time.sleep(0.02)
     assert proc.poll() is None, "the run finished before it could be killed"
     os.kill(proc.pid, signal.SIGKILL)
     proc.wait(30)
     assert proc.returncode == -signal.SIGKILL
-    done = killed.read_bytes().count(b"\n")
+    assert not killed.exists()
+    done = partial.read_bytes().count(b"\n")
     assert 5 <= done < total
-    signature = json.loads(Path(str(killed) + ".signature.json").read_text(encoding="utf-8"))
+    signature = json.loads(Path(str(partial) + ".signature.json").read_text(encoding="utf-8"))
     assert signature["state"] == "incomplete"
 
     resumed = subprocess.run(_score_cmd(inp, killed, tmp_path / "cold", "--resume"), capture_output=True,
                              text=True, timeout=300)
     assert resumed.returncode == 0, resumed.stderr
     assert killed.read_bytes() == whole.read_bytes()
+    assert not partial.exists()
     assert len(doc_ids(killed)) == len(set(doc_ids(killed))) == total
 
 
 def test_killing_a_parallel_run_leaves_no_worker_behind(tmp_path):
     psutil = pytest.importorskip("psutil")  # comes with dask.distributed, in the test extra
     inp = demo_copies(tmp_path / "many.tsv", 15)
-    out = tmp_path / "killed.jsonl"
-    cmd = _score_cmd(inp, out, tmp_path / "cold")
+    out = tmp_path / "killed.jsonl.part"
+    cmd = _score_cmd(inp, tmp_path / "killed.jsonl", tmp_path / "cold")
     cmd[cmd.index("--jobs") + 1] = "2"
     proc = subprocess.Popen(cmd, stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL)
     deadline = time.monotonic() + 120

@@ -39,11 +39,12 @@ def test_streamed_results_are_the_scorers_in_input_order(tmp_path):
 
 def test_each_batch_is_written_before_the_next_one_is_scored(tmp_path, monkeypatch):
     out = tmp_path / "out.jsonl"
+    partial = tmp_path / "out.jsonl.part"  # results stream here until the run is complete
     seen = []
     real = executors.iter_outcomes
 
     def spy(scorer, batch):
-        seen.append((batch.start, len(out.read_text(encoding="utf-8").splitlines())))
+        seen.append((batch.start, len(partial.read_text(encoding="utf-8").splitlines())))
         return real(scorer, batch)
 
     monkeypatch.setattr(executors, "iter_outcomes", spy)
@@ -54,11 +55,12 @@ def test_each_batch_is_written_before_the_next_one_is_scored(tmp_path, monkeypat
 
 def test_within_a_batch_each_result_is_written_before_the_next_document_is_scored(tmp_path, monkeypatch):
     out = tmp_path / "out.jsonl"
+    partial = tmp_path / "out.jsonl.part"  # results stream here until the run is complete
     written_before = []
     real = Scorer.score_parsed
 
     def spy(self, pd, alignments):
-        written_before.append(len(out.read_text(encoding="utf-8").splitlines()))
+        written_before.append(len(partial.read_text(encoding="utf-8").splitlines()))
         return real(self, pd, alignments)
 
     monkeypatch.setattr(Scorer, "score_parsed", spy)

@@ -7,13 +7,18 @@ file; target sentences are matched to source sentences by `sent_id`.
 
 from __future__ import annotations
 
+import hashlib
+from collections.abc import Sequence
 from dataclasses import dataclass
 from pathlib import Path
 
 from gendertrace.errors import InputError
 from gendertrace.parse.conllu_backend import ConlluSentence, iter_conllu
 
-__all__ = ["PudDocument", "PudSentencePair", "load_pud_pair", "pud_path"]
+__all__ = ["HALVES", "PudDocument", "PudSentencePair", "document_half", "load_pud_pair", "pud_path", "select_half"]
+
+# The news documents split in two by document, so that a rule tuned on one half can be checked on the other.
+HALVES = (1, 2)
 
 
 @dataclass(frozen=True)
@@ -83,3 +88,17 @@ def load_pud_pair(data_dir: str | Path, src_lang: str, tgt_lang: str) -> list[Pu
             docs.append((sent.newdoc if sent.newdoc is not None else sent.sent_id, []))
         docs[-1][1].append(PudSentencePair(sent.sent_id, sent, target))
     return [PudDocument(doc_id, tuple(pairs), src_lang, tgt_lang) for doc_id, pairs in docs]
+
+
+def document_half(doc_id: str) -> int:
+    """The half (1 or 2) a document belongs to: fixed by a digest of its id, whatever the file order or language."""
+    return 1 + int(hashlib.sha256(doc_id.encode("utf-8")).hexdigest(), 16) % 2
+
+
+def select_half(docs: Sequence[PudDocument], half: int | None) -> list[PudDocument]:
+    """The documents of one half (1 or 2), or all of them when `half` is None."""
+    if half is None:
+        return list(docs)
+    if half not in HALVES:
+        raise ValueError(f"half must be 1 or 2, not {half!r}")
+    return [d for d in docs if document_half(d.doc_id) == half]

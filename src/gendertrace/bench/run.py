@@ -12,7 +12,7 @@ from pathlib import Path
 
 from gendertrace.bench.baseline import baseline_findings
 from gendertrace.bench.inject import InjectedCopy, copy_document, inject_corpus
-from gendertrace.bench.pud import PudDocument, load_pud_pair, pud_path
+from gendertrace.bench.pud import PudDocument, load_pud_pair, pud_path, select_half
 from gendertrace.model import Document, DocumentResult, Finding, Segment
 from gendertrace.parse.conllu_backend import ConlluParser
 from gendertrace.parse.spacy_backend import load_fresh_pipeline, load_pipeline
@@ -77,15 +77,26 @@ def _rate(a: int, b: int) -> str:
     return f"{a / b:.3f}" if b else "n/a"
 
 
-def run_direction(data: Path, direction: str, seed: int) -> DirectionResult:
+def run_direction(
+    data: Path, direction: str, seed: int, half: int | None = None, align_priors: Path | None = None
+) -> DirectionResult:
+    """Clean and injected runs of one direction, on the documents of `half` (1 or 2; None: all).
+
+    With `align_priors` (a folder), alignments come from the frozen model `<folder>/<direction>.priors`, learned
+    from the clean documents first when that file does not exist.
+    """
     src, tgt = direction.split("-")
-    pud = load_pud_pair(data, src, tgt)
+    pud = select_half(load_pud_pair(data, src, tgt), half)
     # New pipeline instances for every direction, so that the timed clean run below parses with a vocabulary
     # as fresh as the spaCy-only reference's (an earlier direction may have parsed the same sentences).
     load_pipeline.cache_clear()
     scorer = _scorer(data, src, tgt)
     res = DirectionResult(direction, documents=len(pud), source_parser=scorer.src_parser.signature())
     clean_docs = _documents(pud)
+    if align_priors is not None:
+        from gendertrace.bench.frozen import freeze_alignment
+
+        freeze_alignment(scorer, Path(align_priors) / f"{direction}.priors", scorer.parse(clean_docs))
 
     # Clean run: the human translation as it is; every contradiction or inconsistency is a false alarm.
     t0 = time.perf_counter()
@@ -162,13 +173,14 @@ def _spacy_only(scorer: Scorer, docs: Sequence[Document]) -> float:
     return time.perf_counter() - t0
 
 
-def evidence_accuracy(data: Path, lang: str) -> tuple[int, int]:
-    """Gendered evidence tokens the tagger-based extraction reports, and how many agree with gold UD Gender."""
+def evidence_accuracy(data: Path, lang: str, half: int | None = None) -> tuple[int, int]:
+    """Gendered evidence tokens the tagger-based extraction reports, and how many agree with gold UD Gender
+    (on the documents of `half`, or all)."""
     from gendertrace.mentions.extract import extract_mentions
     from gendertrace.parse import get_parser
 
     other = "en" if lang != "en" else "es"
-    docs = load_pud_pair(data, lang, other)
+    docs = select_half(load_pud_pair(data, lang, other), half)
     sents = [p.source for d in docs for p in d.pairs]
     parser = get_parser(lang)
     rules = load_rules(lang)
@@ -238,25 +250,59 @@ def coreference_scores(demo: Path) -> list[tuple[str, str, float, float, float, 
 
 
 def run_benchmark(
-    data: Path, directions: Sequence[str] | None = None, seed: int = 13, report: Path | None = None
+    data: Path,
+    directions: Sequence[str] | None = None,
+    seed: int = 13,
+    report: Path | None = None,
+    half: int | None = None,
+    align_priors: Path | None = None,
+    realmt: Path | None = None,
+    realmt_systems: Sequence[str] | None = None,
+    treebank: bool = True,
 ) -> str:
-    """Run every direction and return (and optionally write) the Markdown report."""
+    """Run every direction and return (and optionally write) the Markdown report.
+
+    `half` restricts the treebank figures to one half of the news documents (`bench.pud.document_half`);
+    `align_priors` (a folder) freezes the word alignment of every run; `realmt` adds the real machine
+    translation section (`bench.realmt`) on that folder; `treebank=False` leaves the treebank sections out.
+    """
     from gendertrace import __version__
     from gendertrace.demo import demo_dir
     from gendertrace.rules import rules_digest
 
     started = datetime.datetime.now(datetime.timezone.utc)
-    results = [run_direction(data, d, seed) for d in (directions or DIRECTIONS)]
-    lines = [
+    options = f" --directions {','.join(directions)}" if directions else ""
+    options += f" --half {half}" if half else ""
+    options += f" --align-priors {align_priors}" if align_priors else ""
+    options += " --only realmt" if not treebank else ""
+    options += f" --realmt-systems {','.join(realmt_systems)}" if realmt_systems else ""
+    head = [
         "# Benchmarks",
         "",
-        f"Command: `gendertrace bench --data {data}{' --directions ' + ','.join(directions) if directions else ''}"
-        f" --seed {seed}` (`make bench`)  ",
+        f"Command: `gendertrace bench --data {data}{options} --seed {seed}` (`make bench`)  ",
         f"Date: {started:%Y-%m-%d %H:%M} UTC; machine: {os.cpu_count()} cores  ",
-        f"Signature: gendertrace {__version__}, rules {rules_digest()}, pipelines: "
-        + ", ".join(sorted({r.source_parser for r in results})),
+        f"Signature: gendertrace {__version__}, rules {rules_digest()}",
         "",
-        "Data: the news half of the Parallel UD treebanks (human translations), documents grouped by `newdoc id`.",
+    ]
+    tail: list[str] = []
+    if realmt is not None:
+        from gendertrace.bench.realmt import judgements_path, load_judgements, realmt_section, run_realmt
+
+        frozen = Path(align_priors) / "wmt-en-es.priors" if align_priors else None
+        found = run_realmt(realmt, realmt_systems, frozen) if realmt.is_dir() else []
+        tail = [""] + realmt_section(realmt, found, load_judgements(judgements_path()))
+    if not treebank:
+        text = "\n".join(head + tail[1:]) + "\n"
+        if report:
+            report.parent.mkdir(parents=True, exist_ok=True)
+            report.write_text(text, encoding="utf-8")
+        return text
+    results = [run_direction(data, d, seed, half, align_priors) for d in (directions or DIRECTIONS)]
+    which = f"half {half} of the news documents (`bench.pud.document_half`)" if half else "the news half"
+    lines = head[:-2] + [
+        head[-2] + ", pipelines: " + ", ".join(sorted({r.source_parser for r in results})),
+        "",
+        f"Data: {which} of the Parallel UD treebanks (human translations), documents grouped by `newdoc id`.",
         "Clean run: every contradiction or inconsistency on the human translation counts as a false alarm.",
         "Injected run: one copy per injection site, each with exactly one gender error (see",
         "`gendertrace.bench.inject` for the sites and the *evidenced* rule); an error is caught when a",
@@ -318,7 +364,7 @@ def run_benchmark(
         "|---|---:|---:|---:|",
     ]
     for lang in SPACY_LANGS:
-        n, ok = evidence_accuracy(data, lang)
+        n, ok = evidence_accuracy(data, lang, half)
         lines.append(f"| {lang} | {n} | {ok} | {_rate(ok, n)} |")
     coref = coreference_scores(demo_dir())
     if coref:
@@ -353,6 +399,10 @@ def run_benchmark(
     from gendertrace.bench.scale import scale_section
 
     lines += [""] + scale_section(data)
+    # The narrator and the person addressed, on the real MT folder beside the treebanks (gendertrace.bench.narrator).
+    from gendertrace.bench.narrator import narrator_section
+
+    lines += [""] + narrator_section(data.parent / "wmt24-en-es-dev")
     # Treebank sentences stay out of the written report: it names documents, segments and words only.
     lines += ["", "## The 20 most confident false alarms (clean runs)", ""]
     alarms = sorted(
@@ -370,7 +420,7 @@ def run_benchmark(
         shown.append(
             f"{direction} {doc_id} [{f.seg_id}] {f.text!r}\n    target: {seg.target}\n    source: {seg.source}"
         )
-    text = "\n".join(lines) + "\n"
+    text = "\n".join(lines + tail) + "\n"
     if report:
         report.parent.mkdir(parents=True, exist_ok=True)
         report.write_text(text, encoding="utf-8")

@@ -14,6 +14,7 @@ from typing import Any
 import yaml
 
 from gendertrace.errors import InputError
+from gendertrace.io.yamlmarks import key_lines, yaml_error
 
 NEUTRAL_CHOICES = ("accept", "flag")
 ASSUMPTION_KINDS = ("named", "roles", "other")  # named persons, role nouns, entities known only by pronouns
@@ -61,13 +62,21 @@ class Policy:
 def load_policy(path: str | Path, base: Policy | None = None) -> Policy:
     """A policy from YAML (keys as in Policy); keys not given keep `base`'s values; InputError if bad."""
     p = Path(path)
+    text = ""
     try:
-        data = yaml.safe_load(p.read_text(encoding="utf-8"))
+        text = p.read_text(encoding="utf-8")
+        data = yaml.safe_load(text)
     except OSError as exc:
         raise InputError(str(p), None, f"cannot read the policy: {exc.strerror}") from exc
+    except UnicodeDecodeError as exc:
+        raise InputError(str(p), None, f"not valid UTF-8 at byte {exc.start}") from exc
     except yaml.YAMLError as exc:
-        mark = getattr(exc, "problem_mark", None)
-        raise InputError(str(p), mark.line + 1 if mark else None, f"not valid YAML: {exc}") from exc
+        raise yaml_error(str(p), exc, text) from exc
+    marks = key_lines(text)
+    if marks.duplicates:
+        keys, line = marks.duplicates[0]
+        raise InputError(str(p), line, f"{keys[0]}: key given twice (the second would silently replace the "
+                                       f"first)")
     if data is None:
         data = {}
     if not isinstance(data, dict):
@@ -75,15 +84,16 @@ def load_policy(path: str | Path, base: Policy | None = None) -> Policy:
     base = base or Policy()
     values: dict[str, Any] = asdict(base)
     for key, value in data.items():
+        line = marks.line((key,))
         if key not in values:
-            raise InputError(str(p), None, f"{key}: unknown policy key (expected {', '.join(values)})")
+            raise InputError(str(p), line, f"{key}: unknown policy key (expected {', '.join(values)})")
         if key == "gendered_for_nonbinary" and not isinstance(value, bool):
-            raise InputError(str(p), None, f"{key}: expected true or false, found {value!r}")
+            raise InputError(str(p), line, f"{key}: expected true or false, found {value!r}")
         if key == "assumptions":
             if isinstance(value, str):
                 value = [] if value == "none" else list(ASSUMPTION_KINDS) if value == "all" else [value]
             if not isinstance(value, list):
-                raise InputError(str(p), None, f"{key}: expected a list of {', '.join(ASSUMPTION_KINDS)}")
+                raise InputError(str(p), line, f"{key}: expected a list of {', '.join(ASSUMPTION_KINDS)}")
             value = tuple(value)
         if key == "first_names" and value is not None and value != PACKAGE_NAME_LIST:
             value = (

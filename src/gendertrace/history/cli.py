@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import sys
+from pathlib import Path
 
 import click
 
@@ -15,6 +16,7 @@ from gendertrace.history.defaults import (
     DEFAULT_THRESHOLD,
     DEFAULT_TRIALS,
 )
+from gendertrace.io.outputs import check_outputs, staged_file
 
 # Exit status of a failed gate, the same as `gendertrace score --fail-under`.
 GATE_EXIT = 3
@@ -30,6 +32,17 @@ def _db_option(f):
         help=f"The store: a file path (SQLite) or a SQLAlchemy URL such as "
              f"postgresql+psycopg://user@host/dbname. Default: {DEFAULT_DB} under the current folder.",
     )(f)
+
+
+def _store_file(db: str | None) -> str | None:
+    """The file of a SQLite store named by --db (None for a database server)."""
+    if db is not None and "://" in db:
+        return db.removeprefix("sqlite:///") if db.startswith("sqlite:///") else None
+    return str(Path(db or DEFAULT_DB).expanduser())
+
+
+def _refuse_store_as_output(db: str | None, out: str) -> None:
+    check_outputs([("--out", out)], [("--db", _store_file(db))])
 
 
 def _open(db: str | None, create: bool = False):
@@ -64,12 +77,16 @@ def history() -> None:
 @click.option("--format", "fmt", type=click.Choice(["tsv", "csv", "jsonl"]), default=None,
               help="Format of --input; by default taken from its extension.")
 @click.option("--replace", is_flag=True, help="Record again a run of this engine and version already stored.")
+@click.option("--keep-incomplete", is_flag=True,
+              help="Record a run whose signature says it is incomplete (killed, or failed before its last "
+                   "document) as it is; `list` and `compare` then mark it incomplete.")
 @_db_option
-def record(results, engine, version, input_path, fmt, replace, db):
+def record(results, engine, version, input_path, fmt, replace, keep_incomplete, db):
     """Store RESULTS.jsonl (and its RESULTS.jsonl.signature.json) as run ENGINE:VERSION.
 
     The whole run is written in one transaction: its signature, per-document statistics, findings, per-entity
-    data and, with --input, the segment texts.
+    data and, with --input, the segment texts. An incomplete run (the partial OUT.part of a run that was
+    killed or failed) is refused unless --keep-incomplete is given.
     """
     from gendertrace.history.runs import load_run
 
@@ -77,7 +94,10 @@ def record(results, engine, version, input_path, fmt, replace, db):
         raise click.BadParameter(f"{engine!r}: an engine name is non-empty and holds no ':'",
                                  param_hint="--engine")
     try:
-        run = load_run(results, input_path, fmt)
+        check_outputs([("--db", _store_file(db))],
+                      [("RESULTS.jsonl", results), ("its signature", f"{results}.signature.json"),
+                       ("--input", input_path)])
+        run = load_run(results, input_path, fmt, keep_incomplete=keep_incomplete)
         with _open(db, create=True) as store:
             info = store.record(run, engine, version, replace=replace)
             where = store.display_url
@@ -85,7 +105,8 @@ def record(results, engine, version, input_path, fmt, replace, db):
         _fail(exc)
     rate = "n/a" if info.rate is None else f"{info.rate:.3f}"
     texts = ", with texts" if info.has_texts else ""
-    click.echo(f"recorded {info.name}: {info.documents} documents, {info.consistent}/{info.checked} "
+    state = " (incomplete run, kept as it is)" if info.incomplete else ""
+    click.echo(f"recorded {info.name}{state}: {info.documents} documents, {info.consistent}/{info.checked} "
                f"consistent (rate {rate}){texts} in {where}")
     for note in run.notes:
         click.echo(f"note: {note}")
@@ -107,7 +128,7 @@ def list_runs(engine, db):
         click.echo("no runs recorded" + (f" for engine {engine}" if engine else ""))
         return
     header = ("run", "recorded (UTC)", "docs", "consistent/checked", "rate", "95% Wilson", "texts", "tool",
-              "rules")
+              "rules", "state")
     rows = []
     for r in runs:
         w = wilson_interval(r.consistent, r.checked)
@@ -115,7 +136,7 @@ def list_runs(engine, db):
                      f"{r.consistent}/{r.checked}",
                      "n/a" if r.rate is None else f"{r.rate:.3f}", w.fmt() if w else "n/a",
                      "yes" if r.has_texts else "no", str(r.signature.get("tool", "")),
-                     str(r.signature.get("rules", ""))))
+                     str(r.signature.get("rules", "")), "incomplete" if r.incomplete else "complete"))
     widths = [max(len(h), *(len(row[k]) for row in rows)) for k, h in enumerate(header)]
     click.echo("  ".join(h.ljust(w) for h, w in zip(header, widths, strict=True)).rstrip())
     click.echo("  ".join("-" * w for w in widths))
@@ -166,6 +187,9 @@ def compare(run_a, run_b, force, fail_on_regression, regression_threshold, alpha
     if result.differences:
         for line in describe_differences(result.differences, info_a.name, info_b.name):
             click.echo(f"warning: signatures differ: {line}", err=True)
+    for info in (info_a, info_b):
+        if info.incomplete:
+            click.echo(f"warning: {info.name} is an incomplete run (recorded with --keep-incomplete)", err=True)
     click.echo(result.render(regression_threshold, alpha))
     if fail_on_regression and result.regressed(regression_threshold, alpha):
         click.echo(f"{info_b.name} regresses against {info_a.name}: rate {result.delta:+.3f} "
@@ -188,11 +212,12 @@ def chart(out, engines, title, samples, seed, db):
     from gendertrace.history.chart import write_chart
 
     try:
-        with _open(db) as store:
-            path = write_chart(store, out, list(engines) or None, samples, seed, title)
+        _refuse_store_as_output(db, out)
+        with _open(db) as store, staged_file(out) as tmp:
+            write_chart(store, tmp, list(engines) or None, samples, seed, title)
     except GendertraceError as exc:
         _fail(exc)
-    click.echo(f"chart written to {path}")
+    click.echo(f"chart written to {out}")
 
 
 @history.command()
@@ -206,6 +231,7 @@ def export(out, table, engine, db):
     from gendertrace.history.export import write_export
 
     try:
+        _refuse_store_as_output(db, out)
         with _open(db) as store:
             n = write_export(store, out, table, engine)
     except GendertraceError as exc:

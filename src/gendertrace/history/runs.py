@@ -29,8 +29,10 @@ from pathlib import Path
 from gendertrace.errors import InputError
 from gendertrace.model import FINDING_KINDS
 
-# Signature keys that describe the input rather than the settings: they may differ between comparable runs.
-INPUT_KEYS: tuple[str, ...] = ("input", "documents")
+# Signature keys that describe the input (or how far the run got) rather than the settings: they may differ
+# between comparable runs. An incomplete run is marked apart (`RunInfo.incomplete`), not as a setting.
+INPUT_KEYS: tuple[str, ...] = ("input", "documents", "state")
+INCOMPLETE = "incomplete"
 # Rules (as written in the findings stage) for words that are checked one by one, not as a noun phrase.
 PREDICATE_RULES: tuple[str, ...] = ("predicative with copula", "participle with agreeing auxiliary",
                                     "secondary predicate")
@@ -156,8 +158,12 @@ def read_signature(results_path: Path) -> dict[str, object]:
 
 
 def load_run(results_path: str | Path, input_path: str | Path | None = None,
-             fmt: str | None = None) -> RunData:
-    """Read RESULTS.jsonl, its signature sidecar and (optionally) the input's texts into a RunData."""
+             fmt: str | None = None, keep_incomplete: bool = False) -> RunData:
+    """Read RESULTS.jsonl, its signature sidecar and (optionally) the input's texts into a RunData.
+
+    A run whose signature says it is incomplete (killed, or failed before its last document) is refused
+    unless `keep_incomplete`; then it keeps that mark in its signature.
+    """
     results_path = Path(results_path)
     signature = read_signature(results_path)
     min_conf = float(signature.get("min_confidence", DEFAULT_MIN_CONFIDENCE))  # type: ignore[arg-type]
@@ -191,6 +197,11 @@ def load_run(results_path: str | Path, input_path: str | Path | None = None,
             langs.add((str(doc.get("src_lang", "")), str(doc.get("tgt_lang", ""))))
     if not documents:
         raise InputError(str(results_path), None, "no documents in the results")
+    if signature.get("state") == INCOMPLETE and not keep_incomplete:
+        raise InputError(f"{results_path}.signature.json", None,
+                         f"state {INCOMPLETE!r}: the run stopped (killed, or failed) after {len(documents)} "
+                         f"documents; finish it with `gendertrace score --resume`, or record it as it is "
+                         f"with --keep-incomplete")
     src_lang, tgt_lang = sorted(langs)[0] if len(langs) == 1 else ("", "")
     segments: tuple[SegmentText, ...] = ()
     if input_path is not None:

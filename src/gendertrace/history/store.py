@@ -26,6 +26,7 @@ from sqlalchemy.engine import Connection, Engine
 from gendertrace.errors import GendertraceError
 from gendertrace.history.defaults import DEFAULT_DB
 from gendertrace.history.runs import (
+    INCOMPLETE,
     DocumentRecord,
     EntityRecord,
     FindingRecord,
@@ -161,6 +162,11 @@ class RunInfo:
     @property
     def name(self) -> str:
         return f"{self.engine}:{self.version}"
+
+    @property
+    def incomplete(self) -> bool:
+        """True for a run recorded with --keep-incomplete: its signature says it stopped early."""
+        return self.signature.get("state") == INCOMPLETE
 
     @property
     def rate(self) -> float | None:

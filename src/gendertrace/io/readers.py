@@ -355,6 +355,9 @@ def _jsonl_rows(path: str) -> Iterator[_Row]:
             if key not in obj:
                 found = ", ".join(repr(k) for k in obj) or "none"
                 raise InputError(path, lineno, f"missing key {key!r}; keys found: {found}")
+            if obj[key] is None:
+                hint = ' (an untranslated segment has "target": "")' if key == "target" else ""
+                raise InputError(path, lineno, f"key {key!r} is null: expected a string{hint}")
             if not isinstance(obj[key], str):
                 raise InputError(
                     path,

@@ -149,6 +149,10 @@ def iter_conllu(path: str | Path, lang: str) -> Iterator[ConlluSentence]:
                 meta, rows, newdoc = {}, [], None
                 start_line = lineno + 1
                 continue
+            restart = line.split("\t", 1)[0].split("-")[0] == "1" and any(c[0].isdigit() for _, c in rows)
+            if rows and (line.startswith("#") or restart):
+                raise InputError(path, lineno, f"a new sentence begins without the blank line that must end "
+                                 f"sentence {meta.get('sent_id', '?')!r} (words from line {start_line}; CoNLL-U)")
             if line.startswith("#"):
                 body = line[1:].strip()
                 if "=" in body:

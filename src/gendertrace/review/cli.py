@@ -7,6 +7,7 @@ from pathlib import Path
 import click
 
 from gendertrace.errors import GendertraceError
+from gendertrace.io.outputs import StagedOutputs, check_outputs
 
 
 @click.command()
@@ -42,38 +43,41 @@ def review(results, input_path, out, xliff_out, csv_out, bom, fmt, tmx_group, ti
     if bom and not csv_out:
         raise click.UsageError("--bom applies to the CSV output: give --csv FILE as well")
     try:
+        check_outputs([("--out", out), ("--csv", csv_out), ("--xliff-out", xliff_out)],
+                      [("RESULTS.jsonl", results), ("its signature", f"{results}.signature.json"),
+                       ("--input", input_path)])
         kind = detect_format(input_path, fmt)
         if xliff_out and kind != "xliff":
             raise click.BadParameter(f"{input_path} is {kind}, not XLIFF: --xliff-out needs an XLIFF input",
                                      param_hint="--xliff-out")
         documents = load_review(results, read_corpus(input_path, fmt, tmx_group=tmx_group))
         missing = [d.doc_id for d in documents if not d.segments]
-        report = render_report(documents, title=title, results_name=Path(results).name,
-                               input_name=Path(input_path).name)
-        _write_text(out, report)
-        findings = sum(len(d.findings) for d in documents)
-        click.echo(f"report: {out} ({len(documents)} documents, {findings} findings)")
-        if missing:
-            shown = ", ".join(repr(m) for m in missing[:5]) + (" ..." if len(missing) > 5 else "")
-            click.echo(f"warning: {len(missing)} document(s) of the results are not in {input_path}: {shown}",
-                       err=True)
-        if csv_out:
-            rows = write_csv(documents, csv_out, bom=bom)
-            click.echo(f"csv: {csv_out} ({rows} rows)")
-        if xliff_out:
-            from gendertrace.review.xliff_notes import write_annotated_xliff
+        messages: list[tuple[str, bool]] = []  # printed once every output is in place
+        # Every output goes to a temporary file first; all are renamed into place only when all are written.
+        with StagedOutputs() as staged:
+            report = render_report(documents, title=title, results_name=Path(results).name,
+                                   input_name=Path(input_path).name)
+            staged.write_text(out, report)
+            findings = sum(len(d.findings) for d in documents)
+            messages.append((f"report: {out} ({len(documents)} documents, {findings} findings)", False))
+            if missing:
+                shown = ", ".join(repr(m) for m in missing[:5]) + (" ..." if len(missing) > 5 else "")
+                messages.append((f"warning: {len(missing)} document(s) of the results are not in "
+                                 f"{input_path}: {shown}", True))
+            if csv_out:
+                rows = write_csv(documents, staged.path(csv_out), bom=bom)
+                messages.append((f"csv: {csv_out} ({rows} rows)", False))
+            if xliff_out:
+                from gendertrace.review.xliff_notes import write_annotated_xliff
 
-            done = write_annotated_xliff(input_path, documents, xliff_out)
-            click.echo(f"xliff: {xliff_out} ({done.notes} notes on {done.units} units)")
-            if done.unplaced:
-                click.echo(f"warning: {len(done.unplaced)} finding(s) match no unit of {input_path}",
-                           err=True)
+                done = write_annotated_xliff(input_path, documents, staged.path(xliff_out))
+                messages.append((f"xliff: {xliff_out} ({done.notes} notes on {done.units} units)", False))
+                if done.unplaced:
+                    messages.append((f"warning: {len(done.unplaced)} finding(s) match no unit of "
+                                     f"{input_path}", True))
     except GendertraceError as exc:
         raise click.ClickException(str(exc)) from exc
-
-
-def _write_text(path: str, text: str) -> None:
-    try:
-        Path(path).write_text(text, encoding="utf-8")
     except OSError as exc:
-        raise click.ClickException(f"{path}: cannot write: {exc.strerror}") from exc
+        raise click.ClickException(f"{exc.filename or out}: cannot write: {exc.strerror}") from exc
+    for message, to_stderr in messages:
+        click.echo(message, err=to_stderr)

@@ -12,10 +12,10 @@ apostrophe, so that a spreadsheet program shows it instead of evaluating it as a
 
 from __future__ import annotations
 
-import csv
 from collections.abc import Sequence
 from pathlib import Path
 
+from gendertrace.io.csvwrite import write_csv_rows
 from gendertrace.review.results import ReviewDocument, ReviewFinding
 
 COLUMNS: tuple[str, ...] = (
@@ -54,9 +54,4 @@ def finding_rows(documents: Sequence[ReviewDocument]) -> list[list[str]]:
 
 def write_csv(documents: Sequence[ReviewDocument], path: str | Path, bom: bool = False) -> int:
     """Write the findings of `documents` to `path`; returns the number of rows written (header excluded)."""
-    rows = finding_rows(documents)
-    with open(path, "w", encoding="utf-8-sig" if bom else "utf-8", newline="") as out:
-        writer = csv.writer(out, lineterminator="\r\n")
-        writer.writerow(COLUMNS)
-        writer.writerows(rows)
-    return len(rows)
+    return write_csv_rows(path, COLUMNS, finding_rows(documents), bom=bom)

@@ -1,21 +1,89 @@
-"""Continuing an interrupted run: what OUT.jsonl already holds, a torn last line repaired.
+"""Continuing an interrupted run: what the partial results already hold, a torn last line repaired.
 
-Results are written one line per document, in input order, each line flushed whole; so after any interruption
-(even SIGKILL) OUT holds a prefix of the results, possibly followed by part of one more line. Repairing cuts
-that part off; the run then goes on from the first document without a complete line.
+A run streams its results into OUT.part (one line per document, in input order, each line flushed whole)
+beside a digest file, OUT.part.digests, holding one line per document (its id and a digest of its input rows),
+each written before the document's result line. After any interruption (even SIGKILL) OUT.part holds a
+prefix of the results, possibly followed by part of one more line, and the digest file at least as many
+complete lines. Repairing cuts the torn part off; the run then goes on from the first document without a
+complete line, after checking that the kept documents' input rows are unchanged. A complete run renames
+OUT.part to OUT (and OUT.part.digests to OUT.digests).
 """
 
 from __future__ import annotations
 
+import hashlib
 import json
 from collections.abc import Iterator
+from dataclasses import dataclass
 from pathlib import Path
 
 from gendertrace.errors import InputError
-from gendertrace.model import DocumentStats
+from gendertrace.model import Document, DocumentStats
 
 # Signature keys that describe the input or the run's progress, not the settings that produced the scores.
 NOT_SETTINGS: tuple[str, ...] = ("input", "documents", "state")
+PARTIAL_SUFFIX = ".part"
+
+
+def signature_path(results: str | Path) -> Path:
+    """The signature sidecar of a results file: RESULTS.signature.json."""
+    return Path(str(results) + ".signature.json")
+
+
+def digests_path(results: str | Path) -> Path:
+    """The input digests of a results file: RESULTS.digests (one 'doc_id<TAB>digest' line per result)."""
+    return Path(str(results) + ".digests")
+
+
+@dataclass(frozen=True)
+class RunFiles:
+    """The files of a run writing OUT: the final trio, and the partial trio it streams into."""
+
+    out: Path
+    partial: Path
+
+    @classmethod
+    def for_output(cls, out: str | Path) -> RunFiles:
+        return cls(Path(out), Path(str(out) + PARTIAL_SUFFIX))
+
+    @property
+    def outputs(self) -> list[tuple[str, Path]]:
+        """What the run may write, named for messages."""
+        return [("--out", self.out), ("signature", signature_path(self.out)), ("digests", digests_path(self.out)),
+                ("partial results", self.partial), ("partial signature", signature_path(self.partial)),
+                ("partial digests", digests_path(self.partial))]
+
+
+def document_digest(document: Document) -> str:
+    """A digest of a document's input rows (ids, source, target and reference of every segment, in order)."""
+    rows = [document.doc_id, [[s.seg_id, s.source, s.target, s.reference] for s in document.segments]]
+    return hashlib.sha256(json.dumps(rows, ensure_ascii=False).encode("utf-8")).hexdigest()[:16]
+
+
+def kept_digests(path: str | Path, count: int) -> list[tuple[str, str]]:
+    """(doc_id, digest) of the first COUNT documents of a digest file, which is cut to those lines.
+
+    InputError when the file holds fewer complete lines (it does not belong to the results beside it).
+    """
+    path = Path(path)
+    kept: list[tuple[str, str]] = []
+    keep_bytes = 0
+    with open(path, "rb") as f:
+        for lineno, raw in enumerate(f, 1):
+            if len(kept) == count or not raw.endswith(b"\n"):
+                break
+            doc_id, tab, digest = raw.decode("utf-8").rstrip("\n").rpartition("\t")
+            if not tab:
+                raise InputError(str(path), lineno, f"expected 'doc_id<TAB>digest', found {raw[:60]!r}")
+            kept.append((doc_id, digest))
+            keep_bytes += len(raw)
+    if len(kept) < count:
+        raise InputError(str(path), None, f"holds digests of {len(kept)} documents but the results beside it "
+                                          f"hold {count}: cannot check the kept documents; score afresh "
+                                          f"without --resume")
+    with open(path, "r+b") as f:
+        f.truncate(keep_bytes)
+    return kept
 
 
 def repair_results(path: str | Path) -> int:
