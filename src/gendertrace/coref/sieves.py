@@ -361,6 +361,37 @@ def quoted_speakers(st: CorefState) -> None:
                 st.attach(m, best, 1.0 if len(speakers) == 1 else ALTERNATIVE_CERTAINTY)
 
 
+def _is_narrator(m: Mention) -> bool:
+    return m.person == "1" and not m.quoted and m.number != "plur"
+
+
+def narrator(st: CorefState) -> None:
+    """The first-person singular outside quotations is one person through the whole document, the narrator;
+    a person noun predicated of it is the narrator too ("I am a mother", "soy la única chica", "I was the
+    only girl")."""
+    first = None
+    for m in st.mentions:
+        if not _is_narrator(m):
+            continue
+        if first is None:
+            first = m
+        else:
+            st.join(first, m)
+        if m.kind == MentionKind.ZERO or m.pron_type != "personal" or m.role not in SUBJECT_RELS:
+            continue  # a zero subject's predicate noun is joined by `structure`
+        parsed = st.parses[m.seg]
+        head = parsed.tokens[parsed.tokens[m.head].head]
+        pred = st.by_token.get((m.seg, head.i))
+        if pred is not None and pred.kind == MentionKind.NOUN and (
+                any(k.deprel == "cop" for k in parsed.children(head.i))):
+            st.join(m, pred)
+        if head.lemma.lower() == "be":
+            for k in parsed.children(head.i):
+                noun = st.by_token.get((m.seg, k.i))
+                if k.deprel == "attr" and noun is not None and noun.kind == MentionKind.NOUN:
+                    st.join(m, noun)
+
+
 def pronouns(st: CorefState) -> None:
     """Pronouns and zero subjects, in text order, to the most salient compatible preceding cluster."""
     for m in st.mentions:
@@ -395,6 +426,7 @@ SIEVES: tuple[Sieve, ...] = (
     partial_names,
     coordinated_subjects,
     role_noun_heads,
+    narrator,
     quoted_speakers,
     pronouns,
 )

@@ -27,6 +27,7 @@ CONF_LEXICON = WEIGHTS.links.lexicon
 CONF_ALIGNED = WEIGHTS.links.alignment
 CONF_PROJECTED = WEIGHTS.links.projection
 CONF_CHAIN = WEIGHTS.links.chain
+CONF_NARRATOR = WEIGHTS.links.narrator
 
 
 def _clause_of(parsed: ParsedText, i: int) -> int:
@@ -147,6 +148,23 @@ def by_projection(ctx: LinkContext, m: Mention, link: Link | None) -> Link | Non
     return link
 
 
+def by_person(ctx: LinkContext, m: Mention, link: Link | None) -> Link | None:
+    """A first-person singular target mention outside quotations that no other method linked goes to the
+    source's narrator (the first-person singular outside quotations, one chain per document: coref's
+    `narrator` sieve), through the narrator's mention in the same segment where there is one."""
+    if link is not None or not _narrator_mention(m):
+        return link
+    narrators = [s for s in ctx.src_mentions if _narrator_mention(s)]
+    if not narrators or len({s.chain for s in narrators}) != 1:
+        return link
+    via = min(narrators, key=lambda s: (s.seg != m.seg, abs(s.seg - m.seg), abs(s.head - m.head)))
+    return Link(m.id, via.chain, LinkMethod.NARRATOR, CONF_NARRATOR, via.id)
+
+
+def _narrator_mention(m: Mention) -> bool:
+    return m.person == "1" and not m.quoted and m.number != "plur"
+
+
 def names_speak_for_nouns(ctx: LinkContext, links: dict[str, Link]) -> None:
     """A name speaks for the nouns joined to it by structure (apposition, title, predicate), not by pronoun
     resolution: "el director de Ruiz, Ana Ruiz" goes where "Ana Ruiz" goes, whatever the aligner paired
@@ -178,7 +196,7 @@ def inherit_through_chain(ctx: LinkContext, links: dict[str, Link]) -> None:
                 links[m.id] = Link(m.id, best, LinkMethod.CHAIN, CONF_CHAIN * m.certainty)
 
 
-DIRECT_METHODS: tuple[DirectMethod, ...] = (by_name, by_lexicon, by_alignment, by_projection)
+DIRECT_METHODS: tuple[DirectMethod, ...] = (by_name, by_lexicon, by_alignment, by_projection, by_person)
 CHAIN_METHODS: tuple[ChainMethod, ...] = (names_speak_for_nouns, inherit_through_chain)
 
 

@@ -366,8 +366,9 @@ def _demonstrative(sc: SegmentSide, t: Token, speaker: bool) -> Mention:
                    sent=t.sent, animate=speaker)
 
 
-def _pronoun(sc: SegmentSide, t: Token) -> Mention | None:
-    """The pronoun mention of token t, or None where t is no person pronoun here."""
+def _pronoun(sc: SegmentSide, t: Token, narrator: bool = False) -> Mention | None:
+    """The pronoun mention of token t, or None where t is no person pronoun here (with `narrator`, only a
+    first-person singular pronoun outside quotations)."""
     rules, toks, parsed = sc.rules, sc.toks, sc.parsed
     neutral_form = (
         any(f.gender == Gender.NEUTRAL for f in rules.pronoun(t.text)) and t.deprel in NEUTRAL_PRONOUN_RELS
@@ -386,8 +387,8 @@ def _pronoun(sc: SegmentSide, t: Token) -> Mention | None:
     singular_they = form is not None and form.number == "plur" and form.singular_neutral
     if form is None or (form.number == "plur" and not singular_they):
         return None
-    if form.person == "1" and t.i not in sc.quoted:
-        return None  # outside quotations "I" is the writer, not a person of the document
+    if form.person == "1" and (t.i not in sc.quoted) != narrator:
+        return None  # outside quotations "I" is the narrator, read by `narrator_mentions` alone
     # An agreeing intensifier shows the person's gender even on an ungendered pronoun: "de sí misma",
     # "ella misma", "sé stessa".
     intensifiers = [k for k in parsed.children(t.i) if k.deprel == "amod" and k.upos in ("ADJ", "DET")
@@ -447,9 +448,29 @@ def zero_subject_mentions(sc: SegmentSide) -> list[Mention]:
     return _zero_subjects(sc) if sc.rules.pro_drop else []
 
 
+def narrator_mentions(sc: SegmentSide) -> list[Mention]:
+    """The narrator's mentions: first-person singular pronouns (subject, object, reflexive, possessive) and, in
+    pro-drop languages, zero subjects of first-person singular verbs, all outside quotations, each with the
+    predicates that agree with it ("estoy cansada", "me sentí orgullosa"). Inside a quotation the first
+    person is the quoted speaker (`pronoun_mentions`, `zero_subject_mentions`)."""
+    out = []
+    for t in sc.toks:
+        if t.i in sc.claimed or t.i in sc.quoted:
+            continue
+        if t.i + 1 in sc.noun_like and sc.rules.article_gender(t.text) is not None:
+            continue
+        m = _pronoun(sc, t, narrator=True)
+        if m is not None and m.person == "1":
+            out.append(m)
+    if sc.rules.pro_drop:
+        out += _zero_subjects(sc, narrator=True)
+    return out
+
+
 Extractor = Callable[[SegmentSide], list[Mention]]
 # In this order: a name takes its words first, then nouns, then pronouns, so that no word makes two mentions.
-EXTRACTORS: tuple[Extractor, ...] = (name_mentions, noun_mentions, pronoun_mentions, zero_subject_mentions)
+EXTRACTORS: tuple[Extractor, ...] = (name_mentions, noun_mentions, pronoun_mentions, zero_subject_mentions,
+                                     narrator_mentions)
 
 
 SINGULAR_THEY_RULE = Rule.SINGULAR_THEY
@@ -1032,10 +1053,13 @@ def _secondary_predicates(pm: _PredicateMarks) -> None:
                 k.deprel == "xcomp"
                 and k.upos in ("ADJ", "VERB")
                 and (k.upos == "ADJ" or k.participle)
-            ):
+            ) or (k.deprel == "obj" and k.upos == "ADJ" and not _heads_clause(parsed, k)):
+                # An adjective is never a direct object: taggers label the predicative one so ("me sentí
+                # orgullosa", "se quedó dormida").
                 pm.add(k, Rule.SECONDARY_PREDICATE)
     elif pred.upos == "VERB" and not any(
-        k.deprel in ("obj", "iobj") and k.upos in ("NOUN", "PROPN", "PRON") for k in kids
+        k.deprel in ("obj", "iobj") and k.upos in ("NOUN", "PROPN", "PRON") and k.feat("Reflex") != "Yes"
+        for k in kids  # the clitic of a pronominal verb is no object: "me quedé dormida", "se sintió sola"
     ):
         for k in kids:
             if (
@@ -1048,6 +1072,11 @@ def _secondary_predicates(pm: _PredicateMarks) -> None:
                             for d in parsed.children(k.i))
             ):
                 pm.add(k, Rule.SECONDARY_PREDICATE)
+
+
+def _heads_clause(parsed: ParsedText, k: Token) -> bool:
+    """An adjective with its own determiner (a noun), subject or copula (a clause of its own)."""
+    return any(d.deprel in ("det", "cop") or d.deprel.startswith("nsubj") for d in parsed.children(k.i))
 
 
 def _controlled_participles(pm: _PredicateMarks) -> None:
@@ -1067,9 +1096,10 @@ def _controlled_participles(pm: _PredicateMarks) -> None:
             pm.add(k, Rule.CONTROLLED_CLAUSE_PARTICIPLE)
 
 
-def _zero_subjects(sc: SegmentSide) -> list[Mention]:
+def _zero_subjects(sc: SegmentSide, narrator: bool = False) -> list[Mention]:
     """Finite 3rd-person singular clauses with no overt subject (pro-drop languages), and 1st-person singular
-    ones inside quotations (the speaker: "«Estoy cansada», dijo")."""
+    ones inside quotations (the speaker: "«Estoy cansada», dijo"); with `narrator`, only the 1st-person
+    singular ones outside quotations (the narrator: "Estoy cansada")."""
     parsed, rules, quoted = sc.parsed, sc.rules, sc.quoted
     out = []
     toks = parsed.tokens
@@ -1089,7 +1119,10 @@ def _zero_subjects(sc: SegmentSide) -> list[Mention]:
         if finite is None or finite.feat("Number") != "Sing":
             continue
         person = finite.feat("Person")
-        if person != "3" and not (person == "1" and finite.i in quoted):
+        if narrator:
+            if person != "1" or finite.i in quoted:
+                continue
+        elif person != "3" and not (person == "1" and finite.i in quoted):
             continue
         if any(k.deprel in SUBJECT_LIKE_RELS for k in kids):
             continue
