@@ -130,6 +130,7 @@ class CorefState:
     certainty: dict[str, float] = field(default_factory=dict)
     antecedent: dict[str, str] = field(default_factory=dict)
     read_by_form: set[str] = field(default_factory=set)
+    narrator: str = ""  # a mention of the narrator (set by the `narrator` sieve), "" where there is none
 
     @classmethod
     def build(cls, mentions: Sequence[Mention], parses: Sequence[ParsedText], use_gender: bool,
@@ -375,6 +376,7 @@ def narrator(st: CorefState) -> None:
             continue
         if first is None:
             first = m
+            st.narrator = m.id
         else:
             st.join(first, m)
         if m.kind == MentionKind.ZERO or m.pron_type != "personal" or m.role not in SUBJECT_RELS:
@@ -816,6 +818,8 @@ def _excluded(c: Mention, m: Mention, st: CorefState, sc: _Scope) -> bool:
         return True  # clitics that may stand for things are anaphors only; a quoted "I" belongs to its speaker
     if cl.find(c.id) == cl.find(m.id):
         return True
+    if st.narrator and m.person != "1" and cl.find(c.id) == cl.find(st.narrator):
+        return True  # a third person is never the narrator, nor the noun the narrator said they are
     # Binding: a non-reflexive personal pronoun does not corefer with the subject of its own clause (which a
     # conjoined verb without a subject shares: "took a ladder and sat on him"), nor, as the subject of a
     # non-finite clause ("allowed her to stay"), with the subject of the clause above.
