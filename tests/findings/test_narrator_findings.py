@@ -52,3 +52,45 @@ def test_where_the_english_says_nothing_of_the_narrator_a_gendered_form_is_an_as
     a = _analyse([(EN_I_ARRIVED, ES_LLEGUE), (EN_I_TIRED, es_i_was_tired("cansado", "Masc"))],
                  [{(1, 0)}, {(1, 0), (2, 1)}])
     assert _found(a) == [("assumption", "2", "cansado", None, "masc")]
+
+
+EN_YOU_WOMAN = ("You are the first woman .", """
+1 You you PRON Case=Nom|Person=2|PronType=Prs 5 nsubj
+2 are be AUX Mood=Ind|Person=2|Tense=Pres|VerbForm=Fin 5 cop
+3 the the DET Definite=Def|PronType=Art 5 det
+4 first first ADJ Degree=Pos|NumType=Ord 5 amod
+5 woman woman NOUN Number=Sing 0 root
+6 . . PUNCT _ 5 punct
+""")
+EN_YOU_READY = ("Are you ready ?", """
+1 Are be AUX Mood=Ind|Person=2|Tense=Pres|VerbForm=Fin 3 cop
+2 you you PRON Case=Nom|Person=2|PronType=Prs 3 nsubj
+3 ready ready ADJ Degree=Pos 0 root
+4 ? ? PUNCT _ 3 punct
+""")
+ES_ERES_MUJER = ("Eres la primera mujer .", """
+1 Eres ser AUX Mood=Ind|Number=Sing|Person=2|Tense=Pres|VerbForm=Fin 4 cop
+2 la el DET Definite=Def|Gender=Fem|Number=Sing|PronType=Art 4 det
+3 primera primero ADJ Gender=Fem|Number=Sing|NumType=Ord 4 amod
+4 mujer mujer NOUN Gender=Fem|Number=Sing 0 root
+5 . . PUNCT _ 4 punct
+""")
+
+
+def es_are_you_ready(adjective: str, gender: str) -> tuple[str, str]:
+    return (f"¿ Estás {adjective} ?", f"""
+1 ¿ ¿ PUNCT _ 3 punct
+2 Estás estar AUX Mood=Ind|Number=Sing|Person=2|Tense=Pres|VerbForm=Fin 3 cop
+3 {adjective} listo ADJ Gender={gender}|Number=Sing 0 root
+4 ? ? PUNCT _ 3 punct
+""")
+
+
+def test_the_person_addressed_is_judged_by_what_the_document_says_of_them():
+    # UD v2 guidelines: "woman" heads the copular clause, "You" is its nsubj; Spanish grammar (from memory):
+    # the adjective after "estás" agrees with "tú".
+    pairs = [(EN_YOU_WOMAN, ES_ERES_MUJER), (EN_YOU_READY, es_are_you_ready("listo", "Masc"))]
+    a = _analyse(pairs, [{(1, 0), (4, 3)}, {(0, 1), (2, 2)}])
+    assert _found(a) == [("contradiction", "2", "listo", "fem", "masc")]
+    ok = _analyse([pairs[0], (EN_YOU_READY, es_are_you_ready("lista", "Fem"))], [{(1, 0), (4, 3)}, {(0, 1), (2, 2)}])
+    assert _found(ok) == []

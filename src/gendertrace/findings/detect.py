@@ -317,9 +317,10 @@ def _tie_partners(ordered: Sequence[Reference], raised: Sequence[Finding],
 
 
 def _is_narrator_entity(e: Entity) -> bool:
-    """The source's narrator (first-person singular outside quotations, coref's `narrator` sieve): its target
-    words pool with no third person a target chain put them with ("estaba", 1st or 3rd person)."""
-    return any(m.person == "1" and not m.quoted and m.number != "plur" for m in e.source_mentions)
+    """The source's narrator or person addressed (first or second person outside quotations, coref's
+    `narrator` and `addressee` sieves): their target words pool with no third person a target chain put them
+    with ("estaba": 1st or 3rd person; "está": "usted" or a third person)."""
+    return any(m.person in ("1", "2") and not m.quoted and m.number != "plur" for m in e.source_mentions)
 
 
 def _entity_verdict(r: Reference, e: Entity, ordered, source_ev, source_verdict, ctx: JudgeContext,

@@ -149,20 +149,21 @@ def by_projection(ctx: LinkContext, m: Mention, link: Link | None) -> Link | Non
 
 
 def by_person(ctx: LinkContext, m: Mention, link: Link | None) -> Link | None:
-    """A first-person singular target mention outside quotations that no other method linked goes to the
-    source's narrator (the first-person singular outside quotations, one chain per document: coref's
-    `narrator` sieve), through the narrator's mention in the same segment where there is one."""
-    if link is not None or not _narrator_mention(m):
+    """A first- or second-person singular target mention outside quotations that no other method linked goes
+    to the source's narrator or person addressed (one chain each per document: coref's `narrator` and
+    `addressee` sieves), through that person's mention nearest to it."""
+    if link is not None or not _speech_role(m):
         return link
-    narrators = [s for s in ctx.src_mentions if _narrator_mention(s)]
-    if not narrators or len({s.chain for s in narrators}) != 1:
+    same = [s for s in ctx.src_mentions if _speech_role(s) == _speech_role(m)]
+    if not same or len({s.chain for s in same}) != 1:
         return link
-    via = min(narrators, key=lambda s: (s.seg != m.seg, abs(s.seg - m.seg), abs(s.head - m.head)))
+    via = min(same, key=lambda s: (s.seg != m.seg, abs(s.seg - m.seg), abs(s.head - m.head)))
     return Link(m.id, via.chain, LinkMethod.NARRATOR, CONF_NARRATOR, via.id)
 
 
-def _narrator_mention(m: Mention) -> bool:
-    return m.person == "1" and not m.quoted and m.number != "plur"
+def _speech_role(m: Mention) -> str:
+    """ "1" for the narrator, "2" for the person addressed (singular, outside quotations), else ""."""
+    return m.person if m.person in ("1", "2") and not m.quoted and m.number != "plur" else ""
 
 
 def names_speak_for_nouns(ctx: LinkContext, links: dict[str, Link]) -> None:

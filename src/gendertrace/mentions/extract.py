@@ -366,9 +366,9 @@ def _demonstrative(sc: SegmentSide, t: Token, speaker: bool) -> Mention:
                    sent=t.sent, animate=speaker)
 
 
-def _pronoun(sc: SegmentSide, t: Token, narrator: bool = False) -> Mention | None:
+def _pronoun(sc: SegmentSide, t: Token, narrator: bool = False, addressee: bool = False) -> Mention | None:
     """The pronoun mention of token t, or None where t is no person pronoun here (with `narrator`, only a
-    first-person singular pronoun outside quotations)."""
+    first-person singular pronoun outside quotations; with `addressee`, only a second-person one)."""
     rules, toks, parsed = sc.rules, sc.toks, sc.parsed
     neutral_form = (
         any(f.gender == Gender.NEUTRAL for f in rules.pronoun(t.text)) and t.deprel in NEUTRAL_PRONOUN_RELS
@@ -389,6 +389,8 @@ def _pronoun(sc: SegmentSide, t: Token, narrator: bool = False) -> Mention | Non
         return None
     if form.person == "1" and (t.i not in sc.quoted) != narrator:
         return None  # outside quotations "I" is the narrator, read by `narrator_mentions` alone
+    if (form.person == "2") != addressee:
+        return None  # the person addressed is read by `addressee_mentions` alone
     # An agreeing intensifier shows the person's gender even on an ungendered pronoun: "de sí misma",
     # "ella misma", "sé stessa".
     intensifiers = [k for k in parsed.children(t.i) if k.deprel == "amod" and k.upos in ("ADJ", "DET")
@@ -467,10 +469,26 @@ def narrator_mentions(sc: SegmentSide) -> list[Mention]:
     return out
 
 
+def addressee_mentions(sc: SegmentSide) -> list[Mention]:
+    """The mentions of the person addressed: second-person pronouns ("you", "tú", "usted", "te", "tu") and, in
+    pro-drop languages, zero subjects of second-person singular verbs ("¿estás lista?"), with the predicates
+    that agree with them. Plural forms ("vosotras", "yourselves") are no one person."""
+    out = []
+    for t in sc.toks:
+        if t.i in sc.claimed:
+            continue
+        m = _pronoun(sc, t, addressee=True)
+        if m is not None and m.person == "2":
+            out.append(m)
+    if sc.rules.pro_drop:
+        out += _zero_subjects(sc, addressee=True)
+    return out
+
+
 Extractor = Callable[[SegmentSide], list[Mention]]
 # In this order: a name takes its words first, then nouns, then pronouns, so that no word makes two mentions.
 EXTRACTORS: tuple[Extractor, ...] = (name_mentions, noun_mentions, pronoun_mentions, zero_subject_mentions,
-                                     narrator_mentions)
+                                     narrator_mentions, addressee_mentions)
 
 
 SINGULAR_THEY_RULE = Rule.SINGULAR_THEY
@@ -1096,10 +1114,11 @@ def _controlled_participles(pm: _PredicateMarks) -> None:
             pm.add(k, Rule.CONTROLLED_CLAUSE_PARTICIPLE)
 
 
-def _zero_subjects(sc: SegmentSide, narrator: bool = False) -> list[Mention]:
+def _zero_subjects(sc: SegmentSide, narrator: bool = False, addressee: bool = False) -> list[Mention]:
     """Finite 3rd-person singular clauses with no overt subject (pro-drop languages), and 1st-person singular
     ones inside quotations (the speaker: "«Estoy cansada», dijo"); with `narrator`, only the 1st-person
-    singular ones outside quotations (the narrator: "Estoy cansada")."""
+    singular ones outside quotations (the narrator: "Estoy cansada"); with `addressee`, only the 2nd-person
+    singular ones ("¿Estás lista?")."""
     parsed, rules, quoted = sc.parsed, sc.rules, sc.quoted
     out = []
     toks = parsed.tokens
@@ -1119,7 +1138,10 @@ def _zero_subjects(sc: SegmentSide, narrator: bool = False) -> list[Mention]:
         if finite is None or finite.feat("Number") != "Sing":
             continue
         person = finite.feat("Person")
-        if narrator:
+        if addressee:
+            if person != "2":
+                continue
+        elif narrator:
             if person != "1" or finite.i in quoted:
                 continue
         elif person != "3" and not (person == "1" and finite.i in quoted):
