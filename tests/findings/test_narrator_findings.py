@@ -4,9 +4,10 @@ nothing."""
 
 from __future__ import annotations
 
+from gendertrace.declared import load_entity_sheet
 from gendertrace.model import Document, ParsedDocument, Segment
 from gendertrace.parse.conllu_backend import ConlluParser
-from gendertrace.pipeline import Scorer
+from gendertrace.pipeline import Scorer, ScoreSettings
 from handparse import EN_I_MOTHER, EN_I_TIRED, ES_SOY_MADRE, es_i_was_tired, parse
 
 EN_I_ARRIVED = ("I arrived .", """
@@ -20,8 +21,9 @@ ES_LLEGUE = ("Llegué .", """
 """)
 
 
-def _analyse(pairs, alignments):
-    scorer = Scorer("en", "es", src_parser=ConlluParser("en", []), tgt_parser=ConlluParser("es", []))
+def _analyse(pairs, alignments, sheet=None):
+    scorer = Scorer("en", "es", ScoreSettings(entity_sheet=sheet),
+                    src_parser=ConlluParser("en", []), tgt_parser=ConlluParser("es", []))
     source = tuple(parse("en", *s) for s, _ in pairs)
     target = tuple(parse("es", *t) for _, t in pairs)
     doc = Document("narra", tuple(Segment(str(k + 1), s.text, t.text)
@@ -94,3 +96,13 @@ def test_the_person_addressed_is_judged_by_what_the_document_says_of_them():
     assert _found(a) == [("contradiction", "2", "listo", "fem", "masc")]
     ok = _analyse([pairs[0], (EN_YOU_READY, es_are_you_ready("lista", "Fem"))], [{(1, 0), (4, 3)}, {(0, 1), (2, 2)}])
     assert _found(ok) == []
+
+
+def test_a_declared_narrator_outranks_the_silence_of_the_english(tmp_path):
+    # docs/entities.md: declared pronouns outrank all other evidence; the sheet's `narrator` is the first person.
+    sheet_path = tmp_path / "people.yaml"
+    sheet_path.write_text("narrator:\n  pronouns:\n    en: she/her\n    es: ella\npersons: []\n", encoding="utf-8")
+    a = _analyse([(EN_I_ARRIVED, ES_LLEGUE), (EN_I_TIRED, es_i_was_tired("cansado", "Masc"))],
+                 [{(1, 0)}, {(1, 0), (2, 1)}], load_entity_sheet(sheet_path))
+    assert _found(a) == [("contradiction", "2", "cansado", "fem", "masc")]
+    assert [e.kind for e in a.findings[0].evidence] == ["declared"]
