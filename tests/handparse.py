@@ -41,3 +41,33 @@ EN_SHE_TIRED = ("She was tired .", """
 3 tired tired ADJ Degree=Pos 0 root
 4 . . PUNCT _ 3 punct
 """)
+
+# A first-person narrator (UD v2 guidelines: the copula "be"/"estar" is `cop`, the predicate heads the clause).
+EN_I_MOTHER = ("I am a mother .", """
+1 I I PRON Case=Nom|Number=Sing|Person=1|PronType=Prs 4 nsubj
+2 am be AUX Mood=Ind|Number=Sing|Person=1|Tense=Pres|VerbForm=Fin 4 cop
+3 a a DET Definite=Ind|PronType=Art 4 det
+4 mother mother NOUN Number=Sing 0 root
+5 . . PUNCT _ 4 punct
+""")
+EN_I_TIRED = ("I was tired .", """
+1 I I PRON Case=Nom|Number=Sing|Person=1|PronType=Prs 3 nsubj
+2 was be AUX Mood=Ind|Number=Sing|Person=1|Tense=Past|VerbForm=Fin 3 cop
+3 tired tired ADJ Degree=Pos 0 root
+4 . . PUNCT _ 3 punct
+""")
+ES_SOY_MADRE = ("Soy madre .", """
+1 Soy ser AUX Mood=Ind|Number=Sing|Person=1|Tense=Pres|VerbForm=Fin 2 cop
+2 madre madre NOUN Gender=Fem|Number=Sing 0 root
+3 . . PUNCT _ 2 punct
+""")
+
+
+def es_i_was_tired(adjective: str, gender: str) -> tuple[str, str]:
+    """ "Estaba cansada/cansado ." with a first-person imperfect copula (Spanish grammar, from memory: the
+    imperfect "estaba" serves the 1st and 3rd persons singular; the tag here says 1st)."""
+    return (f"Estaba {adjective} .", f"""
+1 Estaba estar AUX Mood=Ind|Number=Sing|Person=1|Tense=Imp|VerbForm=Fin 2 cop
+2 {adjective} cansado ADJ Gender={gender}|Number=Sing 0 root
+3 . . PUNCT _ 2 punct
+""")

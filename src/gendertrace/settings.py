@@ -73,6 +73,7 @@ class LinkWeights:
     alignment: float
     projection: float
     chain: float
+    narrator: float
 
 
 @dataclass(frozen=True)

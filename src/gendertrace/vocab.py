@@ -66,6 +66,7 @@ class LinkMethod(StrEnum):
     ALIGNMENT = "alignment"
     PROJECTION = "projection"
     CHAIN = "chain"
+    NARRATOR = "narrator"
 
 
 class Rule(StrEnum):

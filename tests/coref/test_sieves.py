@@ -31,7 +31,7 @@ def _chains(res) -> list[list[str]]:
 def test_sieves_run_from_the_most_precise():
     assert [s.__name__ for s in SIEVES] == [
         "exact_names", "structure", "role_markers", "partial_names", "coordinated_subjects", "role_noun_heads",
-        "quoted_speakers", "pronouns"]
+        "narrator", "addressee", "quoted_speakers", "pronouns"]
 
 
 def test_the_same_name_twice_is_one_chain():

@@ -34,7 +34,8 @@ def _context(pairs, alignments) -> LinkContext:
 
 
 def test_methods_are_tried_most_certain_first():
-    assert [f.__name__ for f in DIRECT_METHODS] == ["by_name", "by_lexicon", "by_alignment", "by_projection"]
+    assert [f.__name__ for f in DIRECT_METHODS] == [
+        "by_name", "by_lexicon", "by_alignment", "by_projection", "by_person"]
     assert [f.__name__ for f in CHAIN_METHODS] == ["names_speak_for_nouns", "inherit_through_chain"]
 
 

@@ -15,7 +15,8 @@ def _marks(m) -> list[tuple[str, str, str]]:
 
 def test_extractors_run_names_nouns_pronouns_zero_subjects_in_that_order():
     assert [f.__name__ for f in EXTRACTORS] == [
-        "name_mentions", "noun_mentions", "pronoun_mentions", "zero_subject_mentions"]
+        "name_mentions", "noun_mentions", "pronoun_mentions", "zero_subject_mentions", "narrator_mentions",
+        "addressee_mentions"]
 
 
 def test_role_noun_carries_its_form_and_its_determiner():

@@ -26,7 +26,7 @@ SHEETS = {
         "people.yaml:4: persons[1]: name 'nerea ubillos' is already listed for 'Nerea Ubillos' (line 2)"),
     "misspelt top-level key": (
         "people.yaml", "persons: []\nperson:\n  - name: Nerea Ubillos\n    gender: fem\n",
-        "people.yaml:2: unknown top-level key 'person' (expected persons)"),
+        "people.yaml:2: unknown top-level key 'person' (expected persons, narrator)"),
     "misspelt person key": (
         "people.yaml", "persons:\n  - name: Nerea Ubillos\n    gendr: fem\n",
         "people.yaml:3: persons[0].gendr: unknown key (expected name, aliases, pronouns, gender, note)"),

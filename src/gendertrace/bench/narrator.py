@@ -421,10 +421,12 @@ def run_narrator(
     systems: Sequence[str] = SYSTEMS,
     errors: Sequence[PersonError] | None = None,
     names: str | None = None,
+    align_priors: str | None = None,
 ) -> NarratorResult:
     """Score the engines and the reference as `gendertrace score -s en -t es` would (parse cache on), without
     and with a first-name policy (`names`: a name list path, or None for the gender-guesser package, skipped
-    when it is not installed), and measure the list's recall and the injected flips."""
+    when it is not installed), and measure the list's recall and the injected flips. With `align_priors` (a
+    file saved by `score --save-align-priors`) the alignment is frozen, so two runs compare word for word."""
     from gendertrace.declared.policy import PACKAGE_NAME_LIST, Policy, load_first_names
     from gendertrace.io.readers import read_corpus
     from gendertrace.parse.cache import default_cache_dir
@@ -453,7 +455,8 @@ def run_narrator(
                             skipped_policies=skipped)
     tgt_rules, src_rules = load_rules("es"), load_rules("en")
     for label, policy in policies:
-        scorer = build_scorer(ScoringPlan("en", "es", cache_dir=str(default_cache_dir()), policy=policy))
+        frozen = {"align_mode": "frozen", "align_priors": align_priors} if align_priors else {}
+        scorer = build_scorer(ScoringPlan("en", "es", cache_dir=str(default_cache_dir()), policy=policy, **frozen))
         run = PolicyRun(label)
         flags: list[Flag] = []
         for system in systems:
@@ -487,14 +490,15 @@ def run_narrator(
     return result
 
 
-def narrator_section(data: str | Path, result: NarratorResult | None = None) -> list[str]:
+def narrator_section(data: str | Path, result: NarratorResult | None = None,
+                     align_priors: str | None = None) -> list[str]:
     """The report section as Markdown lines; when `data` is not a folder, a line saying the section was
     skipped. Runs the measurement when no result is given."""
     data = Path(data)
     lines = ["## The narrator and the person addressed (real MT, English to Spanish)", ""]
     if not data.is_dir():
         return lines + [f"Skipped: no real MT folder at {data} (one SYSTEM.jsonl per engine and reference.jsonl)."]
-    result = result or run_narrator(data)
+    result = result or run_narrator(data, align_priors=align_priors)
     lines += [
         f"Data: {data.name}. The list (`corpora/judgements/en-es-person-errors.tsv`) holds {result.errors} gender "
         f"errors about persons and, apart, {result.assumptions} default choices (`assumption`), found by reading "
@@ -563,10 +567,15 @@ def narrator_section(data: str | Path, result: NarratorResult | None = None) -> 
 
 
 def main(argv: Sequence[str] | None = None) -> int:
-    """Run the section alone: `python -m gendertrace.bench.narrator [DATA_DIR]`."""
+    """Run the section alone: `python -m gendertrace.bench.narrator [DATA_DIR] [--align-priors FILE]`."""
     args = list(sys.argv[1:] if argv is None else argv)
+    priors = None
+    if "--align-priors" in args:
+        at = args.index("--align-priors")
+        priors = args[at + 1]
+        del args[at:at + 2]
     data = Path(args[0]) if args else default_data_dir()
-    print("\n".join(narrator_section(data)))
+    print("\n".join(narrator_section(data, align_priors=priors)))
     return 0
 
 

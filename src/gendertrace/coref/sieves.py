@@ -130,6 +130,8 @@ class CorefState:
     certainty: dict[str, float] = field(default_factory=dict)
     antecedent: dict[str, str] = field(default_factory=dict)
     read_by_form: set[str] = field(default_factory=set)
+    narrator: str = ""  # a mention of the narrator (set by the `narrator` sieve), "" where there is none
+    addressee: str = ""  # a mention of the person addressed (the `addressee` sieve), "" where there is none
 
     @classmethod
     def build(cls, mentions: Sequence[Mention], parses: Sequence[ParsedText], use_gender: bool,
@@ -351,7 +353,7 @@ def quoted_speakers(st: CorefState) -> None:
             c
             for c in st.in_segment(m.seg)
             if not c.quoted
-            and c.person != "1"
+            and c.person not in ("1", "2")
             and c.role in SUBJECT_RELS
             and c.pron_type != "possessive"
         ]
@@ -361,10 +363,61 @@ def quoted_speakers(st: CorefState) -> None:
                 st.attach(m, best, 1.0 if len(speakers) == 1 else ALTERNATIVE_CERTAINTY)
 
 
+def _is_narrator(m: Mention) -> bool:
+    return m.person == "1" and not m.quoted and m.number != "plur"
+
+
+def _is_addressee(m: Mention) -> bool:
+    return m.person == "2" and not m.quoted and m.number != "plur"
+
+
+def narrator(st: CorefState) -> None:
+    """The first-person singular outside quotations is one person through the whole document, the narrator;
+    a person noun predicated of it is the narrator too ("I am a mother", "soy la única chica", "I was the
+    only girl")."""
+    st.narrator = _one_person(st, _is_narrator)
+
+
+def addressee(st: CorefState) -> None:
+    """The second person outside quotations is one person through the document, the person addressed ("you
+    are the first woman", "¿estás lista?"), unless the document also addresses several ("yourselves",
+    "vosotras"): then no one person is meant."""
+    if any(m.person == "2" and not m.quoted and m.number == "plur" for m in st.mentions):
+        return
+    st.addressee = _one_person(st, _is_addressee)
+
+
+def _one_person(st: CorefState, belongs: Callable[[Mention], bool]) -> str:
+    """Joins the mentions `belongs` picks, and the person nouns predicated of them; the first one's id."""
+    first = None
+    for m in st.mentions:
+        if not belongs(m):
+            continue
+        if first is None:
+            first = m
+        else:
+            st.join(first, m)
+        if m.kind == MentionKind.ZERO or m.pron_type != "personal" or m.role not in SUBJECT_RELS:
+            continue  # a zero subject's predicate noun is joined by `structure`
+        parsed = st.parses[m.seg]
+        head = parsed.tokens[parsed.tokens[m.head].head]
+        pred = st.by_token.get((m.seg, head.i))
+        if pred is not None and pred.kind == MentionKind.NOUN and (
+                any(k.deprel == "cop" for k in parsed.children(head.i))):
+            st.join(m, pred)
+        if head.lemma.lower() == "be":
+            for k in parsed.children(head.i):
+                noun = st.by_token.get((m.seg, k.i))
+                if k.deprel == "attr" and noun is not None and noun.kind == MentionKind.NOUN:
+                    st.join(m, noun)
+    return first.id if first is not None else ""
+
+
 def pronouns(st: CorefState) -> None:
     """Pronouns and zero subjects, in text order, to the most salient compatible preceding cluster."""
     for m in st.mentions:
-        if m.kind not in (MentionKind.PRONOUN, MentionKind.ZERO) or m.id in st.antecedent or m.person == "1":
+        if (m.kind not in (MentionKind.PRONOUN, MentionKind.ZERO) or m.id in st.antecedent
+                or m.person in ("1", "2")):
             continue
         if not m.animate and m.gender is None:
             continue  # "it", "its", "ello": a thing, it joins no person
@@ -395,6 +448,8 @@ SIEVES: tuple[Sieve, ...] = (
     partial_names,
     coordinated_subjects,
     role_noun_heads,
+    narrator,
+    addressee,
     quoted_speakers,
     pronouns,
 )
@@ -780,10 +835,16 @@ def _excluded(c: Mention, m: Mention, st: CorefState, sc: _Scope) -> bool:
     own_numbers, own_genders = sc.own_numbers, sc.own_genders
     local_subject_clauses, governing = sc.local_subject_clauses, sc.governing
     reflexive_scope, relative_heads = sc.reflexive_scope, sc.relative_heads
-    if not c.animate or c.person == "1":
-        return True  # clitics that may stand for things are anaphors only; a quoted "I" belongs to its speaker
+    if not c.animate or c.person in ("1", "2"):
+        # Clitics that may stand for things are anaphors only; a quoted "I" belongs to its speaker, and the
+        # first and second persons are the speaker and the person addressed, never a third person.
+        return True
     if cl.find(c.id) == cl.find(m.id):
         return True
+    if st.narrator and m.person != "1" and cl.find(c.id) == cl.find(st.narrator):
+        return True  # a third person is never the narrator, nor the noun the narrator said they are
+    if st.addressee and m.person != "2" and cl.find(c.id) == cl.find(st.addressee):
+        return True  # nor the person addressed
     # Binding: a non-reflexive personal pronoun does not corefer with the subject of its own clause (which a
     # conjoined verb without a subject shares: "took a ladder and sat on him"), nor, as the subject of a
     # non-finite clause ("allowed her to stay"), with the subject of the clause above.

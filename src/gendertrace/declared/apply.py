@@ -54,6 +54,10 @@ def _declared_person(
             person = sheet.person_for(m.key)
             if person is not None:
                 return person, m
+    if sheet.narrator is not None:
+        first = [m for m in mentions if m.person == "1" and not m.quoted and m.number != "plur"]
+        if first:
+            return sheet.narrator, first[0]
     return None
 
 
@@ -91,7 +95,8 @@ def apply_declarations(
                         gender=accepted[0],
                         kind=EvidenceKind.DECLARED,
                         weight=W_DECLARED,
-                        rule=f"entity sheet: {person.name} ({person.describe()}; matched a {where} name)",
+                        rule=f"entity sheet: {person.name} ({person.describe()}; matched a {where} "
+                             f"{'name' if m.kind == MentionKind.NAME else 'first person'})",
                     )
                 )
         if names and not accepted:

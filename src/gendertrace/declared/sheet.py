@@ -59,6 +59,7 @@ class EntitySheet:
     persons: tuple[DeclaredPerson, ...]
     digest: str = ""
     path: str = ""
+    narrator: DeclaredPerson | None = None  # the first person of every document (YAML/JSON key `narrator`)
 
     def person_for(self, key: str) -> DeclaredPerson | None:
         """The person whose name or alias has this name key (see mentions.extract.name_key)."""
@@ -234,11 +235,25 @@ def _from_mapping(text: str, path: str, suffix: str) -> tuple[list[tuple[Any, tu
         raise InputError(path, line, f"{shown}: key given twice (the second would silently replace the first)")
     if not isinstance(data, dict) or not isinstance(data.get("persons"), list):
         raise InputError(path, marks.line(("persons",)), "expected a mapping with a list under 'persons'")
-    unknown = [k for k in data if k != "persons"]
+    unknown = [k for k in data if k not in ("persons", "narrator")]
     if unknown:
         raise InputError(path, marks.line((unknown[0],)),
-                         f"unknown top-level key {unknown[0]!r} (expected persons)")
-    return [(e, ("persons", k)) for k, e in enumerate(data["persons"])], marks.line
+                         f"unknown top-level key {unknown[0]!r} (expected persons, narrator)")
+    narrator = [(data["narrator"], ("narrator",))] if "narrator" in data else []
+    return [(e, ("persons", k)) for k, e in enumerate(data["persons"])] + narrator, marks.line
+
+
+def _narrator(entry: Any, path: str, lines: Lines) -> DeclaredPerson:
+    """The sheet's `narrator`: pronouns and/or a gender (and a note) for the first person outside quotations,
+    validated as a person's are; it has no name, so it matches no name mention."""
+    if not isinstance(entry, dict):
+        raise InputError(path, lines(("narrator",)), f"narrator: expected a mapping with pronouns or a gender, "
+                                                     f"found {entry!r}")
+    unknown = [k for k in entry if k not in ("pronouns", "gender", "note")]
+    if unknown:
+        raise InputError(path, lines(("narrator", unknown[0])),
+                         f"narrator.{unknown[0]}: unknown key (expected pronouns, gender, note)")
+    return _person({"name": "narrator", **entry}, "narrator", path, lambda at: lines(at[1:]), ("", "narrator"))
 
 
 def load_entity_sheet(path: str | Path) -> EntitySheet:
@@ -272,8 +287,12 @@ def load_entity_sheet(path: str | Path) -> EntitySheet:
             str(p), None, f"unknown entity sheet format {suffix!r} (expected .yaml, .json or .csv)"
         )
     persons = []
+    narrator = None
     seen: dict[str, tuple[str, int | None, str]] = {}  # name key -> (name, line, where)
     for entry, at in entries:
+        if at == ("narrator",):
+            narrator = _narrator(entry, str(p), lines)
+            continue
         where = "row" if at[0] == "row" else f"persons[{at[1]}]"
         person = _person(entry, where, str(p), lines, at)
         line = lines(at)
@@ -285,4 +304,4 @@ def load_entity_sheet(path: str | Path) -> EntitySheet:
                                                f"({before}); every name and alias belongs to one person only")
             seen[key] = (person.name, line, where)
         persons.append(person)
-    return EntitySheet(tuple(persons), hashlib.sha256(raw).hexdigest()[:12], str(p))
+    return EntitySheet(tuple(persons), hashlib.sha256(raw).hexdigest()[:12], str(p), narrator)

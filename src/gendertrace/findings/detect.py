@@ -316,6 +316,13 @@ def _tie_partners(ordered: Sequence[Reference], raised: Sequence[Finding],
     return out
 
 
+def _is_narrator_entity(e: Entity) -> bool:
+    """The source's narrator or person addressed (first or second person outside quotations, coref's
+    `narrator` and `addressee` sieves): their target words pool with no third person a target chain put them
+    with ("estaba": 1st or 3rd person; "está": "usted" or a third person)."""
+    return any(m.person in ("1", "2") and not m.quoted and m.number != "plur" for m in e.source_mentions)
+
+
 def _entity_verdict(r: Reference, e: Entity, ordered, source_ev, source_verdict, ctx: JudgeContext,
                     whole: bool):
     """(verdict, kind, support, confidence) from the entity's evidence, or None where it is silent. `whole`:
@@ -326,8 +333,10 @@ def _entity_verdict(r: Reference, e: Entity, ordered, source_ev, source_verdict,
     else:
         pool = {o.span: o for o in ordered}
         if whole and r.mention.certainty >= 1.0:
+            narrator = _is_narrator_entity(e)
             for o in ctx.chain_refs.get(r.mention.chain, []):
-                pool.setdefault(o.span, o)
+                if not narrator or o.mention in e.target_mentions:
+                    pool.setdefault(o.span, o)
         others = [mk for key, o in pool.items() if key != r.span for mk in o.marks]
         if not others and not source_ev:
             return None

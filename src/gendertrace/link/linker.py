@@ -27,6 +27,7 @@ CONF_LEXICON = WEIGHTS.links.lexicon
 CONF_ALIGNED = WEIGHTS.links.alignment
 CONF_PROJECTED = WEIGHTS.links.projection
 CONF_CHAIN = WEIGHTS.links.chain
+CONF_NARRATOR = WEIGHTS.links.narrator
 
 
 def _clause_of(parsed: ParsedText, i: int) -> int:
@@ -147,6 +148,24 @@ def by_projection(ctx: LinkContext, m: Mention, link: Link | None) -> Link | Non
     return link
 
 
+def by_person(ctx: LinkContext, m: Mention, link: Link | None) -> Link | None:
+    """A first- or second-person singular target mention outside quotations that no other method linked goes
+    to the source's narrator or person addressed (one chain each per document: coref's `narrator` and
+    `addressee` sieves), through that person's mention nearest to it."""
+    if link is not None or not _speech_role(m):
+        return link
+    same = [s for s in ctx.src_mentions if _speech_role(s) == _speech_role(m)]
+    if not same or len({s.chain for s in same}) != 1:
+        return link
+    via = min(same, key=lambda s: (s.seg != m.seg, abs(s.seg - m.seg), abs(s.head - m.head)))
+    return Link(m.id, via.chain, LinkMethod.NARRATOR, CONF_NARRATOR, via.id)
+
+
+def _speech_role(m: Mention) -> str:
+    """ "1" for the narrator, "2" for the person addressed (singular, outside quotations), else ""."""
+    return m.person if m.person in ("1", "2") and not m.quoted and m.number != "plur" else ""
+
+
 def names_speak_for_nouns(ctx: LinkContext, links: dict[str, Link]) -> None:
     """A name speaks for the nouns joined to it by structure (apposition, title, predicate), not by pronoun
     resolution: "el director de Ruiz, Ana Ruiz" goes where "Ana Ruiz" goes, whatever the aligner paired
@@ -178,7 +197,7 @@ def inherit_through_chain(ctx: LinkContext, links: dict[str, Link]) -> None:
                 links[m.id] = Link(m.id, best, LinkMethod.CHAIN, CONF_CHAIN * m.certainty)
 
 
-DIRECT_METHODS: tuple[DirectMethod, ...] = (by_name, by_lexicon, by_alignment, by_projection)
+DIRECT_METHODS: tuple[DirectMethod, ...] = (by_name, by_lexicon, by_alignment, by_projection, by_person)
 CHAIN_METHODS: tuple[ChainMethod, ...] = (names_speak_for_nouns, inherit_through_chain)
 
 

@@ -7,7 +7,7 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 
 from gendertrace.mentions.segment import SegmentSide
-from gendertrace.model import EvidenceItem, Token
+from gendertrace.model import EvidenceItem, ParsedText, Token
 from gendertrace.rules import LanguageRules
 from gendertrace.settings import WEIGHTS
 from gendertrace.vocab import BINARY, SUBJECT_RELS, EvidenceKind, Gender, Rule
@@ -228,10 +228,13 @@ def _secondary_predicates(pm: _PredicateMarks) -> None:
                 k.deprel == "xcomp"
                 and k.upos in ("ADJ", "VERB")
                 and (k.upos == "ADJ" or k.participle)
-            ):
+            ) or (k.deprel == "obj" and k.upos == "ADJ" and not _heads_clause(parsed, k)):
+                # An adjective is never a direct object: taggers label the predicative one so ("me sentí
+                # orgullosa", "se quedó dormida").
                 pm.add(k, Rule.SECONDARY_PREDICATE)
     elif pred.upos == "VERB" and not any(
-        k.deprel in ("obj", "iobj") and k.upos in ("NOUN", "PROPN", "PRON") for k in kids
+        k.deprel in ("obj", "iobj") and k.upos in ("NOUN", "PROPN", "PRON") and k.feat("Reflex") != "Yes"
+        for k in kids  # the clitic of a pronominal verb is no object: "me quedé dormida", "se sintió sola"
     ):
         for k in kids:
             if (
@@ -244,6 +247,11 @@ def _secondary_predicates(pm: _PredicateMarks) -> None:
                             for d in parsed.children(k.i))
             ):
                 pm.add(k, Rule.SECONDARY_PREDICATE)
+
+
+def _heads_clause(parsed: ParsedText, k: Token) -> bool:
+    """An adjective with its own determiner (a noun), subject or copula (a clause of its own)."""
+    return any(d.deprel in ("det", "cop") or d.deprel.startswith("nsubj") for d in parsed.children(k.i))
 
 
 def _controlled_participles(pm: _PredicateMarks) -> None:

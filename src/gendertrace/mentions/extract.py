@@ -305,8 +305,9 @@ def _demonstrative(sc: SegmentSide, t: Token, speaker: bool) -> Mention:
                    sent=t.sent, animate=speaker)
 
 
-def _pronoun(sc: SegmentSide, t: Token) -> Mention | None:
-    """The pronoun mention of token t, or None where t is no person pronoun here."""
+def _pronoun(sc: SegmentSide, t: Token, narrator: bool = False, addressee: bool = False) -> Mention | None:
+    """The pronoun mention of token t, or None where t is no person pronoun here (with `narrator`, only a
+    first-person singular pronoun outside quotations; with `addressee`, only a second-person one)."""
     rules, toks, parsed = sc.rules, sc.toks, sc.parsed
     neutral_form = (
         any(f.gender == Gender.NEUTRAL for f in rules.pronoun(t.text)) and t.deprel in NEUTRAL_PRONOUN_RELS
@@ -325,8 +326,10 @@ def _pronoun(sc: SegmentSide, t: Token) -> Mention | None:
     singular_they = form is not None and form.number == "plur" and form.singular_neutral
     if form is None or (form.number == "plur" and not singular_they):
         return None
-    if form.person == "1" and t.i not in sc.quoted:
-        return None  # outside quotations "I" is the writer, not a person of the document
+    if form.person == "1" and (t.i not in sc.quoted) != narrator:
+        return None  # outside quotations "I" is the narrator, read by `narrator_mentions` alone
+    if (form.person == "2") != addressee:
+        return None  # the person addressed is read by `addressee_mentions` alone
     # An agreeing intensifier shows the person's gender even on an ungendered pronoun: "de sí misma",
     # "ella misma", "sé stessa".
     intensifiers = [k for k in parsed.children(t.i) if k.deprel == "amod" and k.upos in ("ADJ", "DET")
@@ -386,9 +389,45 @@ def zero_subject_mentions(sc: SegmentSide) -> list[Mention]:
     return _zero_subjects(sc) if sc.rules.pro_drop else []
 
 
+def narrator_mentions(sc: SegmentSide) -> list[Mention]:
+    """The narrator's mentions: first-person singular pronouns (subject, object, reflexive, possessive) and, in
+    pro-drop languages, zero subjects of first-person singular verbs, all outside quotations, each with the
+    predicates that agree with it ("estoy cansada", "me sentí orgullosa"). Inside a quotation the first
+    person is the quoted speaker (`pronoun_mentions`, `zero_subject_mentions`)."""
+    out = []
+    for t in sc.toks:
+        if t.i in sc.claimed or t.i in sc.quoted:
+            continue
+        if t.i + 1 in sc.noun_like and sc.rules.article_gender(t.text) is not None:
+            continue
+        m = _pronoun(sc, t, narrator=True)
+        if m is not None and m.person == "1":
+            out.append(m)
+    if sc.rules.pro_drop:
+        out += _zero_subjects(sc, narrator=True)
+    return out
+
+
+def addressee_mentions(sc: SegmentSide) -> list[Mention]:
+    """The mentions of the person addressed: second-person pronouns ("you", "tú", "usted", "te", "tu") and, in
+    pro-drop languages, zero subjects of second-person singular verbs ("¿estás lista?"), with the predicates
+    that agree with them. Plural forms ("vosotras", "yourselves") are no one person."""
+    out = []
+    for t in sc.toks:
+        if t.i in sc.claimed:
+            continue
+        m = _pronoun(sc, t, addressee=True)
+        if m is not None and m.person == "2":
+            out.append(m)
+    if sc.rules.pro_drop:
+        out += _zero_subjects(sc, addressee=True)
+    return out
+
+
 Extractor = Callable[[SegmentSide], list[Mention]]
 # In this order: a name takes its words first, then nouns, then pronouns, so that no word makes two mentions.
-EXTRACTORS: tuple[Extractor, ...] = (name_mentions, noun_mentions, pronoun_mentions, zero_subject_mentions)
+EXTRACTORS: tuple[Extractor, ...] = (name_mentions, noun_mentions, pronoun_mentions, zero_subject_mentions,
+                                     narrator_mentions, addressee_mentions)
 
 
 SINGULAR_THEY_RULE = Rule.SINGULAR_THEY
@@ -772,9 +811,11 @@ def _title_noun_gender(form: str, rules: LanguageRules) -> str | None:
     return None
 
 
-def _zero_subjects(sc: SegmentSide) -> list[Mention]:
+def _zero_subjects(sc: SegmentSide, narrator: bool = False, addressee: bool = False) -> list[Mention]:
     """Finite 3rd-person singular clauses with no overt subject (pro-drop languages), and 1st-person singular
-    ones inside quotations (the speaker: "«Estoy cansada», dijo")."""
+    ones inside quotations (the speaker: "«Estoy cansada», dijo"); with `narrator`, only the 1st-person
+    singular ones outside quotations (the narrator: "Estoy cansada"); with `addressee`, only the 2nd-person
+    singular ones ("¿Estás lista?")."""
     parsed, rules, quoted = sc.parsed, sc.rules, sc.quoted
     out = []
     toks = parsed.tokens
@@ -794,7 +835,13 @@ def _zero_subjects(sc: SegmentSide) -> list[Mention]:
         if finite is None or finite.feat("Number") != "Sing":
             continue
         person = finite.feat("Person")
-        if person != "3" and not (person == "1" and finite.i in quoted):
+        if addressee:
+            if person != "2":
+                continue
+        elif narrator:
+            if person != "1" or finite.i in quoted:
+                continue
+        elif person != "3" and not (person == "1" and finite.i in quoted):
             continue
         if any(k.deprel in SUBJECT_LIKE_RELS for k in kids):
             continue

@@ -225,8 +225,8 @@ def _pronoun_form(item: Any, where: str, path: Path) -> PronounForm:
     if not isinstance(animate, bool):
         raise _fail(path, f"{where}.animate", f"expected true or false, found {animate!r}")
     person = str(item.get("person", 3))
-    if person not in ("1", "3"):
-        raise _fail(path, f"{where}.person", f"expected 1 or 3, found {item.get('person')!r}")
+    if person not in ("1", "2", "3"):
+        raise _fail(path, f"{where}.person", f"expected 1, 2 or 3, found {item.get('person')!r}")
     singular_neutral = item.get("singular_neutral", False)
     if not isinstance(singular_neutral, bool) or (singular_neutral and number != "plur"):
         raise _fail(
