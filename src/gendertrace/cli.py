@@ -16,6 +16,17 @@ GATE_EXIT = 3
 NOTHING_CHECKED_EXIT = 4
 
 
+
+def _default(name: str):
+    """A default read from the weights file when the command runs (a bad file is then a one-line error)."""
+    def read():
+        from gendertrace.settings import WEIGHTS
+
+        return getattr(WEIGHTS.defaults, name)
+
+    return read
+
+
 def _fail(exc: Exception) -> None:
     raise click.ClickException(str(exc)) from exc
 
@@ -65,7 +76,8 @@ def _common_options(f):
                      help="Pre-parsed source sentences (CoNLL-U, matched by their '# text'); repeatable."),
         click.option("--tgt-conllu", multiple=True, type=click.Path(exists=True, dir_okay=False),
                      help="Pre-parsed target sentences (CoNLL-U); repeatable."),
-        click.option("--min-confidence", type=click.FloatRange(0, 1), default=0.5, show_default=True,
+        click.option("--min-confidence", type=click.FloatRange(0, 1), default=_default("min_confidence"),
+                     show_default="from rules/scoring/weights.yaml, 0.5 as shipped",
                      help="Findings below this confidence are not reported."),
     ]
     for opt in reversed(options):
@@ -148,10 +160,11 @@ def main() -> None:
 @click.option("--jobs", "-j", type=click.IntRange(min=1), default=None,
               help="Cores to use: batches run in this many worker processes, each aligner "
                    "single-threaded [default: all cores of this machine].")
-@click.option("--batch-docs", type=click.IntRange(min=1), default=500, show_default=True,
-              help="Documents parsed, aligned and scored together; the word aligner is trained on "
-                   "each batch, so this bounds memory and sets the alignment's context. Part of the "
-                   "run signature.")
+@click.option("--batch-docs", type=click.IntRange(min=1), default=_default("batch_docs"),
+              show_default="from rules/scoring/weights.yaml, 500 as shipped",
+              help="Documents parsed and scored together (a unit of work for --jobs and --resume); it bounds "
+                   "memory. With the default aligner findings do not depend on it; with --align-mode sampled "
+                   "the aligner is trained on each batch. Part of the run signature.")
 @click.option("--cache", "cache_dir", type=click.Path(file_okay=False), default=None,
               help="Folder of the parse cache [default: $GENDERTRACE_CACHE_DIR, else "
                    "gendertrace/parses in the user cache folder ($XDG_CACHE_HOME or ~/.cache)].")
