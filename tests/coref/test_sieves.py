@@ -81,3 +81,23 @@ def test_a_plural_noun_is_no_antecedent_for_a_singular_zero_subject():
     # A plural noun makes no mention (mentions are of one person), so the zero subject has no antecedent.
     res = resolve_chains(ms, ps, "source", use_gender=True)
     assert _chains(res) == [["Estaba"]] and res.chains[0].mentions[0].antecedent == ""
+
+
+def _noun_sentence(det: str, noun: str, lemma: str, gender: str, verb: str) -> tuple[str, str]:
+    return (f"{det} {noun} {verb} .", f"""
+1 {det} el DET Definite=Def|Gender={gender}|Number=Sing|PronType=Art 2 det
+2 {noun} {lemma} NOUN Gender={gender}|Number=Sing 3 nsubj
+3 {verb} {verb} VERB Mood=Ind|Number=Sing|Person=3|Tense=Past|VerbForm=Fin 0 root
+4 . . PUNCT _ 3 punct
+""")
+
+
+def test_the_two_members_of_a_gendered_pair_are_two_people_even_where_gender_is_not_used():
+    # rey/reina are a lexical pair of two persons (a handbook grammar fact: the feminine names another person,
+    # not the same role again); the gender-blind target side must still keep them apart.
+    ms, ps = _side(_noun_sentence("El", "rey", "rey", "Masc", "habló"),
+                   _noun_sentence("La", "reina", "reina", "Fem", "sonrió"),
+                   _noun_sentence("El", "rey", "rey", "Masc", "calló"))
+    assert ms[0].key == ms[1].key  # the pair shares its key; only the form tells them apart
+    res = resolve_chains(ms, ps, "target", use_gender=False)
+    assert _chains(res) == [["rey", "rey"], ["reina"]]

@@ -326,7 +326,8 @@ def coordinated_subjects(st: CorefState) -> None:
 def role_noun_heads(st: CorefState) -> None:
     """The same role noun again ("la ministra ... la ministra"). An indefinite noun phrase introduces a new
     person rather than taking up one already mentioned ("la mujer ... como un hombre"), so the later mention
-    must not be indefinite."""
+    must not be indefinite. The two members of a gendered pair ("el rey ... la reina", "su tío ... su tía") share
+    a key but name two people: only the same form is the same role noun again."""
     nouns = st.of_kind(MentionKind.NOUN)
     cl = st.clusters
     later: dict[str, list[Mention]] = {}
@@ -337,7 +338,7 @@ def role_noun_heads(st: CorefState) -> None:
         same.pop(0)
         for b in same:
             if (cl.find(a.id) != cl.find(b.id) and not _different_names(cl, a, b)
-                    and not _indefinite(st.parses[b.seg], b.head)):
+                    and a.text.lower() == b.text.lower() and not _indefinite(st.parses[b.seg], b.head)):
                 st.join(a, b)
 
 
