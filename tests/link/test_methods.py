@@ -61,3 +61,46 @@ def test_an_overt_pronoun_links_through_the_source_word_it_is_aligned_to():
 def test_no_alignment_and_no_clause_means_no_link():
     ctx = _context([(ES_SHE_ARRIVED, EN_SHE_ARRIVED)], [set()])
     assert link_all(ctx) == {}
+
+
+ES_TITLED = ("La directora Ana Ruiz llegó .", """
+1 La el DET Definite=Def|Gender=Fem|Number=Sing|PronType=Art 2 det
+2 directora director NOUN Gender=Fem|Number=Sing 5 nsubj
+3 Ana Ana PROPN _ 2 appos NE=PER
+4 Ruiz Ruiz PROPN _ 3 flat NE=PER
+5 llegó llegar VERB Mood=Ind|Number=Sing|Person=3|Tense=Past|VerbForm=Fin 0 root
+6 . . PUNCT _ 5 punct
+""")
+EN_TITLED = ("Director Ana Ruiz arrived .", """
+1 Director director NOUN Number=Sing 3 compound
+2 Ana Ana PROPN Number=Sing 3 compound NE=PER
+3 Ruiz Ruiz PROPN Number=Sing 4 nsubj NE=PER
+4 arrived arrive VERB Mood=Ind|Tense=Past|VerbForm=Fin 0 root
+5 . . PUNCT _ 4 punct
+""")
+ES_HE_SMILED = ("El director sonrió .", """
+1 El el DET Definite=Def|Gender=Masc|Number=Sing|PronType=Art 2 det
+2 director director NOUN Gender=Masc|Number=Sing 3 nsubj
+3 sonrió sonreír VERB Mood=Ind|Number=Sing|Person=3|Tense=Past|VerbForm=Fin 0 root
+4 . . PUNCT _ 3 punct
+""")
+EN_HE_SMILED = ("The director smiled .", """
+1 The the DET Definite=Def|PronType=Art 2 det
+2 director director NOUN Number=Sing 3 nsubj
+3 smiled smile VERB Mood=Ind|Tense=Past|VerbForm=Fin 0 root
+4 . . PUNCT _ 3 punct
+""")
+
+
+def test_a_name_speaks_for_the_noun_of_its_own_sentence_not_for_one_taken_up_by_its_head_later():
+    ctx = _context([(ES_TITLED, EN_TITLED), (ES_HE_SMILED, EN_HE_SMILED)],
+                   [{(1, 0), (2, 1), (3, 2), (4, 3), (5, 4)}, {(0, 0), (1, 1), (2, 2), (3, 3)}])
+    ctx.lexicon = {}  # the nouns reach their source only through the aligner
+    tgt = {m.id: m for m in ctx.tgt_mentions}
+    title, later = (m for m in ctx.tgt_mentions if m.kind == "noun")
+    assert title.chain == later.chain == tgt["t0.2"].chain  # one target chain: title, name, the same noun again
+    links = link_all(ctx)
+    # The source keeps "la directora Ana Ruiz" (S1) and "el director" (S2) apart by gender.
+    assert links["t0.2"].source_chain == "S1" and links[title.id].source_chain == "S1"
+    # The noun of the second segment was joined by its head only: its own alignment link stands.
+    assert (links[later.id].source_chain, links[later.id].method) == ("S2", "alignment")
