@@ -74,3 +74,24 @@ def test_english_gendered_pronoun_is_a_personal_pronoun_mark():
     (m,) = extract_mentions(p, 0, "1", "target", load_rules("en"))
     assert (m.kind, m.pron_type, m.role, m.clause) == ("pronoun", "personal", "nsubj", 2)
     assert _marks(m) == [("She", "fem", "personal pronoun")]
+
+
+def test_a_coordinated_participle_of_its_own_compound_tense_clause_is_no_agreement():
+    # Spanish grammar: after "haber" the participle is invariable, and a conjunct with its own subject is
+    # another clause (handbook grammar facts, from memory). Only "segura" agrees with the zero subject.
+    p = parse("es", "Estaba segura , pero las fuerzas habían llegado y contenta .", """
+1 Estaba estar AUX Mood=Ind|Number=Sing|Person=3|Tense=Imp|VerbForm=Fin 2 cop
+2 segura seguro ADJ Gender=Fem|Number=Sing 0 root
+3 , , PUNCT _ 8 punct
+4 pero pero CCONJ _ 8 cc
+5 las el DET Definite=Def|Gender=Fem|Number=Plur|PronType=Art 6 det
+6 fuerzas fuerza NOUN Gender=Fem|Number=Plur 8 nsubj
+7 habían haber AUX Mood=Ind|Number=Plur|Person=3|Tense=Imp|VerbForm=Fin 8 aux
+8 llegado llegar VERB Gender=Masc|Number=Sing|Tense=Past|VerbForm=Part 2 conj
+9 y y CCONJ _ 10 cc
+10 contenta contento ADJ Gender=Fem|Number=Sing 2 conj
+11 . . PUNCT _ 2 punct
+""")
+    (zero,) = [m for m in extract_mentions(p, 0, "1", "source", ES) if m.kind == "zero"]
+    assert _marks(zero) == [("contenta", "fem", "predicative with copula"), ("segura", "fem", "predicative with copula")]
+
