@@ -95,3 +95,16 @@ def test_a_coordinated_participle_of_its_own_compound_tense_clause_is_no_agreeme
     (zero,) = [m for m in extract_mentions(p, 0, "1", "source", ES) if m.kind == "zero"]
     assert _marks(zero) == [("contenta", "fem", "predicative with copula"), ("segura", "fem", "predicative with copula")]
 
+
+def test_a_finite_verb_gets_no_gender_from_its_ending():
+    # Spanish grammar: finite verbs do not inflect for gender; "-a" in "empieza" is a person ending, not a
+    # feminine one (handbook grammar fact, from memory). A misparse made the verb the head of "es".
+    p = parse("es", "Y es cuando empieza .", """
+1 Y y CCONJ _ 4 advmod
+2 es ser AUX Mood=Ind|Number=Sing|Person=3|Tense=Pres|VerbForm=Fin 4 cop
+3 cuando cuando SCONJ _ 4 mark
+4 empieza empezar VERB Mood=Ind|Number=Sing|Person=3|Tense=Pres|VerbForm=Fin 0 root
+5 . . PUNCT _ 4 punct
+""")
+    (zero,) = [m for m in extract_mentions(p, 0, "1", "source", ES) if m.kind == "zero"]
+    assert zero.marks == ()

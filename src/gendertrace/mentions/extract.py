@@ -933,7 +933,8 @@ class _PredicateMarks:
         if not tok.text[:1].isalpha():
             return  # a misparse made punctuation the predicate
         g = tok.gender
-        if tok.upos in ("ADJ", "VERB") and rules.endings:
+        # Ending-based gender is for adjectives and participles: a finite verb ("empieza", "ruego") has none.
+        if (tok.upos == "ADJ" or (tok.upos == "VERB" and tok.participle)) and rules.endings:
             matched, by_ending = rules.ending_gender(tok.text)
             if matched:
                 g = by_ending
