@@ -101,3 +101,33 @@ def test_the_two_members_of_a_gendered_pair_are_two_people_even_where_gender_is_
     assert ms[0].key == ms[1].key  # the pair shares its key; only the form tells them apart
     res = resolve_chains(ms, ps, "target", use_gender=False)
     assert _chains(res) == [["rey", "rey"], ["reina"]]
+
+
+EN = load_rules("en")
+
+
+def test_a_narrated_pronoun_takes_the_narrated_person_not_one_named_inside_a_quotation():
+    # Reported speech: a person named inside the quoted words belongs to the speaker's words, and narration
+    # goes on with the people of the narration (common practice, no source).
+    sentences = [("The guard waited .", """
+1 The the DET Definite=Def|PronType=Art 2 det
+2 guard guard NOUN Number=Sing 3 nsubj
+3 waited wait VERB Mood=Ind|Tense=Past|VerbForm=Fin 0 root
+4 . . PUNCT _ 3 punct
+"""), ('" The doctor stays . "', """
+1 " " PUNCT _ 4 punct
+2 The the DET Definite=Def|PronType=Art 3 det
+3 doctor doctor NOUN Number=Sing 4 nsubj
+4 stays stay VERB Mood=Ind|Tense=Pres|VerbForm=Fin 0 root
+5 . . PUNCT _ 4 punct
+6 " " PUNCT _ 4 punct
+"""), ("He left .", """
+1 He he PRON Case=Nom|Gender=Masc|Number=Sing|Person=3|PronType=Prs 2 nsubj
+2 left leave VERB Mood=Ind|Tense=Past|VerbForm=Fin 0 root
+3 . . PUNCT _ 2 punct
+""")]
+    parses = [parse("en", text, rows) for text, rows in sentences]
+    ms = [m for k, p in enumerate(parses) for m in extract_mentions(p, k, str(k + 1), "source", EN)]
+    assert [(m.text, m.quoted) for m in ms] == [("guard", False), ("doctor", True), ("He", False)]
+    res = resolve_chains(ms, parses, "source", use_gender=True)
+    assert _chains(res) == [["guard", "He"], ["doctor"]]

@@ -744,6 +744,10 @@ def _pick_antecedent(m: Mention, st: CorefState):
             scored[root] = (s, c)
     if not scored:
         return fallback, ([fallback] if fallback is not None else []), []  # a fallback is never certain
+    if not m.quoted and any(not c.quoted for _, c in scored.values()):
+        # Narration takes up the people of the narration: a person named inside someone's quoted words is
+        # no antecedent while one outside the quotation fits ("'The child stays,' he said. He added...").
+        scored = {r: sc_c for r, sc_c in scored.items() if not sc_c[1].quoted}
     ranked = sorted(scored.values(), key=lambda x: -x[0])
     best_score, best = ranked[0]
     alternatives = [c for s, c in ranked[1:] if best_score - s < ALTERNATIVE_MARGIN]
