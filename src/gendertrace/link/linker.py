@@ -150,20 +150,16 @@ def by_projection(ctx: LinkContext, m: Mention, link: Link | None) -> Link | Non
 def names_speak_for_nouns(ctx: LinkContext, links: dict[str, Link]) -> None:
     """A name speaks for the nouns joined to it by structure (apposition, title, predicate), not by pronoun
     resolution: "el director de Ruiz, Ana Ruiz" goes where "Ana Ruiz" goes, whatever the aligner paired
-    "director" with. Structure joins words of one sentence; a noun the chain took up by its head elsewhere ("el
-    rey ... el rey") keeps its own link."""
+    "director" with."""
     for group in _target_chains(ctx).values():
-        names = [o for o in group if o.kind == MentionKind.NAME and o.id in links
-                 and links[o.id].method == LinkMethod.NAME]
-        named = {links[o.id].source_chain for o in names}
+        named = {links[o.id].source_chain for o in group if o.kind == MentionKind.NAME and o.id in links
+                 and links[o.id].method == LinkMethod.NAME}
         if len(named) != 1:
             continue
         (target_chain,) = named
-        sentences = {(o.seg, ctx.tgt_parses[o.seg].tokens[o.head].sent) for o in names}
         for o in group:
             link = links.get(o.id)
             if (o.kind == MentionKind.NOUN and not o.antecedent and link is not None
-                    and (o.seg, ctx.tgt_parses[o.seg].tokens[o.head].sent) in sentences
                     and link.method in (LinkMethod.ALIGNMENT, LinkMethod.PROJECTION)
                     and link.source_chain != target_chain):
                 links[o.id] = Link(o.id, target_chain, LinkMethod.CHAIN, CONF_CHAIN)
