@@ -131,3 +131,24 @@ def test_a_narrated_pronoun_takes_the_narrated_person_not_one_named_inside_a_quo
     assert [(m.text, m.quoted) for m in ms] == [("guard", False), ("doctor", True), ("He", False)]
     res = resolve_chains(ms, parses, "source", use_gender=True)
     assert _chains(res) == [["guard", "He"], ["doctor"]]
+
+
+def test_an_intensifier_after_a_coordination_is_the_last_conjunct():
+    # English grammar: an emphatic reflexive follows the noun phrase it intensifies (handbook grammar fact, from
+    # memory); the parser hung it on the verb as a bare noun-phrase adjunct (obl:npmod, UD v2 guidelines).
+    p = parse("en", "A cry came from the guard and Queen Ana herself .", """
+1 A a DET Definite=Ind|PronType=Art 2 det
+2 cry cry NOUN Number=Sing 3 nsubj
+3 came come VERB Mood=Ind|Tense=Past|VerbForm=Fin 0 root
+4 from from ADP _ 6 case
+5 the the DET Definite=Def|PronType=Art 6 det
+6 guard guard NOUN Number=Sing 3 obl
+7 and and CCONJ _ 9 cc
+8 Queen Queen PROPN Number=Sing 9 compound NE=PER
+9 Ana Ana PROPN Number=Sing 6 conj NE=PER
+10 herself herself PRON Case=Acc|Gender=Fem|Number=Sing|Person=3|PronType=Prs|Reflex=Yes 3 obl:npmod
+11 . . PUNCT _ 3 punct
+""")
+    ms = extract_mentions(p, 0, "1", "source", EN)
+    res = resolve_chains(ms, [p], "source", use_gender=True)
+    assert _chains(res) == [["guard"], ["Queen", "Ana", "herself"]]

@@ -517,6 +517,10 @@ def _intensifier_of(m: Mention, parsed: ParsedText) -> int:
     t = parsed.tokens[m.head]
     if t.is_root or any(k.deprel == "case" for k in parsed.children(t.i)):
         return -1
+    if t.deprel in ("obl:npmod", "npmod") and t.i > 0 and parsed.tokens[t.i - 1].upos in ("NOUN", "PROPN"):
+        # Hung on the verb as a bare noun-phrase adjunct, it still intensifies the noun right before it, the
+        # last conjunct of a coordination ("the advisor and Queen Ana herself").
+        return t.i - 1
     head = parsed.tokens[t.head]
     return head.i if head.upos in ("NOUN", "PROPN") else -1
 
