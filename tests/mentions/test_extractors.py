@@ -108,3 +108,17 @@ def test_a_finite_verb_gets_no_gender_from_its_ending():
 """)
     (zero,) = [m for m in extract_mentions(p, 0, "1", "source", ES) if m.kind == "zero"]
     assert zero.marks == ()
+
+
+def test_a_clause_with_a_neuter_demonstrative_has_no_zero_subject():
+    # Spanish grammar: "eso", "esto" are neuter demonstratives that stand for a thing or a situation (handbook
+    # grammar fact, from memory); the parser hung "eso" on the predicate as an adverbial modifier.
+    p = parse("es", "¿ No es eso injusto ?", """
+1 ¿ ¿ PUNCT _ 5 punct
+2 No no ADV Polarity=Neg 5 advmod
+3 es ser AUX Mood=Ind|Number=Sing|Person=3|Tense=Pres|VerbForm=Fin 5 cop
+4 eso ese PRON Number=Sing|PronType=Dem 5 advmod
+5 injusto injusto ADJ Gender=Masc|Number=Sing 0 root
+6 ? ? PUNCT _ 5 punct
+""")
+    assert [m.kind for m in extract_mentions(p, 0, "1", "source", ES)] == []
