@@ -326,8 +326,9 @@ def coordinated_subjects(st: CorefState) -> None:
 def role_noun_heads(st: CorefState) -> None:
     """The same role noun again ("la ministra ... la ministra"). An indefinite noun phrase introduces a new
     person rather than taking up one already mentioned ("la mujer ... como un hombre"), so the later mention
-    must not be indefinite. The two members of a gendered pair ("el rey ... la reina", "su tío ... su tía") share
-    a key but name two people: only the same form is the same role noun again."""
+    must not be indefinite. Two nouns of a pair made of different words ("el rey ... la reina", "el padre ... la
+    madre") share a key but name two people; the two inflections of one noun ("el ministro ... la ministra") may
+    be one person whose gender a translation got wrong once."""
     nouns = st.of_kind(MentionKind.NOUN)
     cl = st.clusters
     later: dict[str, list[Mention]] = {}
@@ -338,8 +339,15 @@ def role_noun_heads(st: CorefState) -> None:
         same.pop(0)
         for b in same:
             if (cl.find(a.id) != cl.find(b.id) and not _different_names(cl, a, b)
-                    and a.text.lower() == b.text.lower() and not _indefinite(st.parses[b.seg], b.head)):
+                    and _one_noun(a.text, b.text) and not _indefinite(st.parses[b.seg], b.head)):
                 st.join(a, b)
+
+
+def _one_noun(a: str, b: str) -> bool:
+    """Whether two forms are one noun, perhaps in its two genders: equal once a final gender vowel is dropped
+    ("ministro"/"ministra", "profesor"/"profesora"), unlike the words of a pair ("rey"/"reina")."""
+    a, b = a.lower(), b.lower()
+    return a == b or a.rstrip("aeo") == b.rstrip("aeo")
 
 
 def quoted_speakers(st: CorefState) -> None:
