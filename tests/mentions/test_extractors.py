@@ -93,7 +93,8 @@ def test_a_coordinated_participle_of_its_own_compound_tense_clause_is_no_agreeme
 11 . . PUNCT _ 2 punct
 """)
     (zero,) = [m for m in extract_mentions(p, 0, "1", "source", ES) if m.kind == "zero"]
-    assert _marks(zero) == [("contenta", "fem", "predicative with copula"), ("segura", "fem", "predicative with copula")]
+    assert _marks(zero) == [("contenta", "fem", "predicative with copula"),
+                            ("segura", "fem", "predicative with copula")]
 
 
 def test_a_finite_verb_gets_no_gender_from_its_ending():
