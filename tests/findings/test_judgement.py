@@ -95,3 +95,25 @@ def test_worked_example_with_she_is_consistent():
     assert (a.stats.checked, a.stats.consistent) == (1, 1)
     (entity,) = a.entities
     assert (entity.gender, entity.checked, entity.consistent) == ("fem", 1, 1)
+
+
+def test_a_zero_subject_translating_it_makes_no_person_of_a_thing():
+    # "it" stands for things as well as persons; a Spanish zero subject agrees with whatever its subject is
+    # (handbook grammar facts, from memory), so neither side names a person here.
+    scorer = Scorer("en", "es", src_parser=ConlluParser("en", []), tgt_parser=ConlluParser("es", []))
+    source = (parse("en", "It was broken .", """
+1 It it PRON Case=Nom|Gender=Neut|Number=Sing|Person=3|PronType=Prs 3 nsubj:pass
+2 was be AUX Mood=Ind|Number=Sing|Person=3|Tense=Past|VerbForm=Fin 3 aux:pass
+3 broken break VERB Tense=Past|VerbForm=Part|Voice=Pass 0 root
+4 . . PUNCT _ 3 punct
+"""),)
+    target = (parse("es", "Estaba rota .", """
+1 Estaba estar AUX Mood=Ind|Number=Sing|Person=3|Tense=Imp|VerbForm=Fin 2 cop
+2 rota roto ADJ Gender=Fem|Number=Sing 0 root
+3 . . PUNCT _ 2 punct
+"""),)
+    doc = Document("caja", (Segment("1", source[0].text, target[0].text),))
+    a = scorer.analyse(ParsedDocument(doc, source, target), [frozenset({(1, 0), (2, 0), (2, 1), (3, 2)})])
+    (zero,) = [m for m in a.target.resolved() if m.kind == "zero"]
+    assert a.links[zero.id].method == "projection"  # the zero subject is tied to "It" ...
+    assert a.entities == [] and a.findings == []  # ... which names no person

@@ -75,3 +75,52 @@ def test_english_gendered_pronoun_is_a_personal_pronoun_mark():
     (m,) = extract_mentions(p, 0, "1", "target", load_rules("en"))
     assert (m.kind, m.pron_type, m.role, m.clause) == ("pronoun", "personal", "nsubj", 2)
     assert _marks(m) == [("She", "fem", "personal pronoun")]
+
+
+def test_a_coordinated_participle_of_its_own_compound_tense_clause_is_no_agreement():
+    # Spanish grammar: after "haber" the participle is invariable, and a conjunct with its own subject is
+    # another clause (handbook grammar facts, from memory). Only "segura" agrees with the zero subject.
+    p = parse("es", "Estaba segura , pero las fuerzas habían llegado y contenta .", """
+1 Estaba estar AUX Mood=Ind|Number=Sing|Person=3|Tense=Imp|VerbForm=Fin 2 cop
+2 segura seguro ADJ Gender=Fem|Number=Sing 0 root
+3 , , PUNCT _ 8 punct
+4 pero pero CCONJ _ 8 cc
+5 las el DET Definite=Def|Gender=Fem|Number=Plur|PronType=Art 6 det
+6 fuerzas fuerza NOUN Gender=Fem|Number=Plur 8 nsubj
+7 habían haber AUX Mood=Ind|Number=Plur|Person=3|Tense=Imp|VerbForm=Fin 8 aux
+8 llegado llegar VERB Gender=Masc|Number=Sing|Tense=Past|VerbForm=Part 2 conj
+9 y y CCONJ _ 10 cc
+10 contenta contento ADJ Gender=Fem|Number=Sing 2 conj
+11 . . PUNCT _ 2 punct
+""")
+    (zero,) = [m for m in extract_mentions(p, 0, "1", "source", ES) if m.kind == "zero"]
+    assert _marks(zero) == [("contenta", "fem", "predicative with copula"),
+                            ("segura", "fem", "predicative with copula")]
+
+
+def test_a_finite_verb_gets_no_gender_from_its_ending():
+    # Spanish grammar: finite verbs do not inflect for gender; "-a" in "empieza" is a person ending, not a
+    # feminine one (handbook grammar fact, from memory). A misparse made the verb the head of "es".
+    p = parse("es", "Y es cuando empieza .", """
+1 Y y CCONJ _ 4 advmod
+2 es ser AUX Mood=Ind|Number=Sing|Person=3|Tense=Pres|VerbForm=Fin 4 cop
+3 cuando cuando SCONJ _ 4 mark
+4 empieza empezar VERB Mood=Ind|Number=Sing|Person=3|Tense=Pres|VerbForm=Fin 0 root
+5 . . PUNCT _ 4 punct
+""")
+    (zero,) = [m for m in extract_mentions(p, 0, "1", "source", ES) if m.kind == "zero"]
+    assert zero.marks == ()
+
+
+def test_a_clause_with_a_neuter_demonstrative_has_no_zero_subject():
+    # Spanish grammar: "eso", "esto" are neuter demonstratives that stand for a thing or a situation (handbook
+    # grammar fact, from memory); the parser hung "eso" on the predicate as an adverbial modifier.
+    p = parse("es", "¿ No es eso injusto ?", """
+1 ¿ ¿ PUNCT _ 5 punct
+2 No no ADV Polarity=Neg 5 advmod
+3 es ser AUX Mood=Ind|Number=Sing|Person=3|Tense=Pres|VerbForm=Fin 5 cop
+4 eso ese PRON Number=Sing|PronType=Dem 5 advmod
+5 injusto injusto ADJ Gender=Masc|Number=Sing 0 root
+6 ? ? PUNCT _ 5 punct
+""")
+    assert [m.kind for m in extract_mentions(p, 0, "1", "source", ES)] == []

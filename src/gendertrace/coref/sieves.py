@@ -328,7 +328,9 @@ def coordinated_subjects(st: CorefState) -> None:
 def role_noun_heads(st: CorefState) -> None:
     """The same role noun again ("la ministra ... la ministra"). An indefinite noun phrase introduces a new
     person rather than taking up one already mentioned ("la mujer ... como un hombre"), so the later mention
-    must not be indefinite."""
+    must not be indefinite. Two nouns of a pair made of different words ("el rey ... la reina", "el padre ... la
+    madre") share a key but name two people; the two inflections of one noun ("el ministro ... la ministra") may
+    be one person whose gender a translation got wrong once."""
     nouns = st.of_kind(MentionKind.NOUN)
     cl = st.clusters
     later: dict[str, list[Mention]] = {}
@@ -339,8 +341,15 @@ def role_noun_heads(st: CorefState) -> None:
         same.pop(0)
         for b in same:
             if (cl.find(a.id) != cl.find(b.id) and not _different_names(cl, a, b)
-                    and not _indefinite(st.parses[b.seg], b.head)):
+                    and _one_noun(a.text, b.text) and not _indefinite(st.parses[b.seg], b.head)):
                 st.join(a, b)
+
+
+def _one_noun(a: str, b: str) -> bool:
+    """Whether two forms are one noun, perhaps in its two genders: equal once a final gender vowel is dropped
+    ("ministro"/"ministra", "profesor"/"profesora"), unlike the words of a pair ("rey"/"reina")."""
+    a, b = a.lower(), b.lower()
+    return a == b or a.rstrip("aeo") == b.rstrip("aeo")
 
 
 def quoted_speakers(st: CorefState) -> None:
@@ -571,6 +580,10 @@ def _intensifier_of(m: Mention, parsed: ParsedText) -> int:
     t = parsed.tokens[m.head]
     if t.is_root or any(k.deprel == "case" for k in parsed.children(t.i)):
         return -1
+    if t.deprel in ("obl:npmod", "npmod") and t.i > 0 and parsed.tokens[t.i - 1].upos in ("NOUN", "PROPN"):
+        # Hung on the verb as a bare noun-phrase adjunct, it still intensifies the noun right before it, the
+        # last conjunct of a coordination ("the advisor and Queen Ana herself").
+        return t.i - 1
     head = parsed.tokens[t.head]
     return head.i if head.upos in ("NOUN", "PROPN") else -1
 
@@ -798,6 +811,10 @@ def _pick_antecedent(m: Mention, st: CorefState):
             scored[root] = (s, c)
     if not scored:
         return fallback, ([fallback] if fallback is not None else []), []  # a fallback is never certain
+    if not m.quoted and any(not c.quoted for _, c in scored.values()):
+        # Narration takes up the people of the narration: a person named inside someone's quoted words is
+        # no antecedent while one outside the quotation fits ("'The child stays,' he said. He added...").
+        scored = {r: sc_c for r, sc_c in scored.items() if not sc_c[1].quoted}
     ranked = sorted(scored.values(), key=lambda x: -x[0])
     best_score, best = ranked[0]
     alternatives = [c for s, c in ranked[1:] if best_score - s < ALTERNATIVE_MARGIN]

@@ -13,6 +13,7 @@ from dataclasses import dataclass, replace
 from gendertrace.coref.sieves import Resolution
 from gendertrace.model import Entity, EvidenceItem, Link, Mention
 from gendertrace.settings import WEIGHTS
+from gendertrace.vocab import MentionKind
 
 # Evidence weight at which a single kind of evidence is fairly strong: rules/scoring/weights.yaml, "resolution".
 STRENGTH_SCALE = WEIGHTS.resolution.strength_scale
@@ -71,9 +72,10 @@ def build_entities(
     n = 0
     for ch in src_res.chains:
         targets = by_source_chain.get(ch.id, [])
-        if not any(m.animate for m in ch.mentions + tuple(targets)):
+        if not any(m.animate for m in ch.mentions + tuple(t for t in targets if t.kind != MentionKind.ZERO)):
             # Only pronouns that may stand for things ("it", "lo") on both sides: no person is meant. Where the
-            # translation says "him" or "she" for such a clitic ("le ho chiesto"), it speaks of a person.
+            # translation says "him" or "she" for such a clitic ("le ho chiesto"), it speaks of a person; a zero
+            # subject says nothing of the kind ("it was restored" / "∅ fue restaurada").
             continue
         # A source mark counts as much as its mention is surely part of the chain.
         source_marks = [

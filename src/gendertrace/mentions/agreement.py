@@ -129,7 +129,8 @@ class _PredicateMarks:
         if not tok.text[:1].isalpha():
             return  # a misparse made punctuation the predicate
         g = tok.gender
-        if tok.upos in ("ADJ", "VERB") and rules.endings:
+        # Ending-based gender is for adjectives and participles: a finite verb ("empieza", "ruego") has none.
+        if (tok.upos == "ADJ" or (tok.upos == "VERB" and tok.participle)) and rules.endings:
             matched, by_ending = rules.ending_gender(tok.text)
             if matched:
                 g = by_ending
@@ -205,14 +206,20 @@ def _participle_copula(pm: _PredicateMarks) -> None:
 
 def _coordinated_predicates(pm: _PredicateMarks) -> None:
     """Predicates coordinated with one already marked."""
-    pred, kids = pm.pred, pm.kids
-    # Coordinated predicates agree with the same subject ("cansada pero muy satisfecha").
+    parsed, rules, pred, kids = pm.sc.parsed, pm.sc.rules, pm.pred, pm.kids
+    # Coordinated predicates agree with the same subject ("cansada pero muy satisfecha"); a conjunct with a
+    # subject of its own is another clause, and a participle under the compound-tense auxiliary is invariable
+    # ("segura, pero los poderes habían comenzado").
     if pm.marks and pred.upos in ("ADJ", "VERB"):
         for k in kids:
+            own = parsed.children(k.i) if k.deprel == "conj" else ()
             if (
                 k.deprel == "conj"
                 and k.upos in ("ADJ", "VERB")
                 and (k.upos == "ADJ" or k.participle)
+                and not any(d.deprel.startswith("nsubj") for d in own)
+                and not any(d.deprel in ("aux", "aux:tense") and d.lemma.lower() in rules.invariable_aux
+                            for d in own)
             ):
                 pm.add(k, Rule.PREDICATIVE_WITH_COPULA)
 

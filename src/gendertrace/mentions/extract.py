@@ -811,6 +811,13 @@ def _title_noun_gender(form: str, rules: LanguageRules) -> str | None:
     return None
 
 
+def _neuter_demonstrative(parsed: ParsedText, k: Token) -> bool:
+    """A demonstrative pronoun with no gender ("eso", "esto") hanging on a clause as no object and with no
+    preposition: a thing or a situation that stands as the clause's subject."""
+    return (k.upos == "PRON" and k.feat("PronType") == "Dem" and k.feat("Gender") is None
+            and k.deprel not in ("obj", "iobj") and not any(c.deprel == "case" for c in parsed.children(k.i)))
+
+
 def _zero_subjects(sc: SegmentSide, narrator: bool = False, addressee: bool = False) -> list[Mention]:
     """Finite 3rd-person singular clauses with no overt subject (pro-drop languages), and 1st-person singular
     ones inside quotations (the speaker: "«Estoy cansada», dijo"); with `narrator`, only the 1st-person
@@ -845,6 +852,8 @@ def _zero_subjects(sc: SegmentSide, narrator: bool = False, addressee: bool = Fa
             continue
         if any(k.deprel in SUBJECT_LIKE_RELS for k in kids):
             continue
+        if any(_neuter_demonstrative(parsed, k) for k in kids):
+            continue  # "¿no es eso incorrecto?": the parser missed the neuter demonstrative subject
         lemma = (finite.lemma if finite is t else t.lemma).lower()
         if lemma in rules.subjectless_verbs and finite is t:
             continue  # existential "hay", weather "hace frío": no subject at all
