@@ -181,19 +181,6 @@ class EvidenceItem:
     def span(self) -> Span:
         return Span(self.side, self.seg, self.start, self.end)
 
-    def to_json(self) -> dict:
-        return {
-            "side": self.side,
-            "seg_id": self.seg_id,
-            "start": self.start,
-            "end": self.end,
-            "text": self.text,
-            "gender": self.gender,
-            "kind": self.kind,
-            "weight": round(self.weight, 3),
-            "rule": self.rule,
-        }
-
 
 @dataclass(frozen=True)
 class Mention:
@@ -276,25 +263,6 @@ class Entity:
     consistent: int = 0  # of those, the ones that agree with it
     declared: tuple[str, ...] = ()  # genders the entity sheet accepts for the target forms, preferred first
 
-    def to_json(self) -> dict:
-        out = {
-            "id": self.id,
-            "label": self.label,
-            "gender": self.gender,
-            "confidence": round(self.confidence, 3),
-            "checked": self.checked,
-            "consistent": self.consistent,
-            "source_mentions": [_mention_json(m) for m in self.source_mentions],
-            "target_mentions": [_mention_json(m) for m in self.target_mentions],
-            "evidence": [e.to_json() for e in self.evidence],
-        }
-        if self.declared:
-            out["declared"] = list(self.declared)
-        return out
-
-
-def _mention_json(m: Mention) -> dict:
-    return {"seg": m.seg, "start": m.start, "end": m.end, "text": m.text, "kind": m.kind}
 
 
 # ---------------------------------------------------------------------------------------------------------------
@@ -323,21 +291,6 @@ class Finding:
     def span(self) -> Span:
         """Findings are about target words."""
         return Span("target", self.seg, self.start, self.end)
-
-    def to_json(self) -> dict:
-        return {
-            "kind": self.kind,
-            "seg_id": self.seg_id,
-            "start": self.start,
-            "end": self.end,
-            "text": self.text,
-            "expected": self.expected,
-            "found": self.found,
-            "entity": self.entity,
-            "confidence": round(self.confidence, 3),
-            "message": self.message,
-            "evidence": [e.to_json() for e in self.evidence],
-        }
 
 
 @dataclass(frozen=True)
