@@ -2,8 +2,9 @@
 
 from __future__ import annotations
 
-from gendertrace.link.align import _assignment, _best_pairing
+from gendertrace.link.align import _best_pairing
 from gendertrace.link.wordpairs import WordPairAligner, load_word_pairs
+from gendertrace.matching import max_weight_matching
 from gendertrace.model import ParsedText, Token
 
 
@@ -55,4 +56,4 @@ def test_pronoun_pairing_is_an_exact_assignment():
     assert _best_pairing(cands) == {(0, 11), (1, 10)}
     # The minimum-cost assignment of this 3 x 3 matrix is rows to columns 1, 0, 2 (cost 5; the other five
     # permutations cost 6 to 11, checked by hand).
-    assert _assignment([[4, 1, 3], [2, 0, 5], [3, 2, 2]]) == [1, 0, 2]
+    assert max_weight_matching([[-4, -1, -3], [-2, 0, -5], [-3, -2, -2]]) == [(0, 1), (1, 0), (2, 2)]

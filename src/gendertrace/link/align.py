@@ -17,6 +17,7 @@ import tempfile
 from collections.abc import Callable, Iterator, Sequence
 from contextlib import contextmanager, nullcontext
 
+from gendertrace.matching import max_weight_matching
 from gendertrace.model import ParsedText
 
 log = logging.getLogger(__name__)
@@ -263,56 +264,12 @@ def _best_pairing(cands: list[tuple[float, float, int, int]]) -> set[tuple[int, 
         weight[(i, j)] = max(weight.get((i, j), 0.0), offset - neg_score)
     rows, cols = (src_ids, tgt_ids) if len(src_ids) <= len(tgt_ids) else (tgt_ids, src_ids)
     flipped = rows is tgt_ids
-    cost = [[-weight.get((c, r) if flipped else (r, c), 0.0) for c in cols] for r in rows]
+    table = [[weight.get((c, r) if flipped else (r, c), 0.0) for c in cols] for r in rows]
     out = set()
-    for r, c in enumerate(_assignment(cost)):
+    for r, c in max_weight_matching(table):
         pair = (cols[c], rows[r]) if flipped else (rows[r], cols[c])
         if pair in weight:
             out.add(pair)
-    return out
-
-
-def _assignment(cost: list[list[float]]) -> list[int]:
-    """For each row of a cost matrix with no more rows than columns, its column in a minimum-cost assignment
-    (the Hungarian method with potentials, O(rows^2 x columns))."""
-    n, m = len(cost), len(cost[0])
-    inf = float("inf")
-    u, v = [0.0] * (n + 1), [0.0] * (m + 1)
-    owner = [0] * (m + 1)  # owner[c]: the row (1-based) assigned to column c, 0 for none
-    way = [0] * (m + 1)
-    for r in range(1, n + 1):
-        owner[0] = r
-        c0 = 0
-        minv = [inf] * (m + 1)
-        used = [False] * (m + 1)
-        while True:
-            used[c0] = True
-            r0, delta, c1 = owner[c0], inf, 0
-            for c in range(1, m + 1):
-                if used[c]:
-                    continue
-                cur = cost[r0 - 1][c - 1] - u[r0] - v[c]
-                if cur < minv[c]:
-                    minv[c], way[c] = cur, c0
-                if minv[c] < delta:
-                    delta, c1 = minv[c], c
-            for c in range(m + 1):
-                if used[c]:
-                    u[owner[c]] += delta
-                    v[c] -= delta
-                else:
-                    minv[c] -= delta
-            c0 = c1
-            if owner[c0] == 0:
-                break
-        while c0:
-            c1 = way[c0]
-            owner[c0] = owner[c1]
-            c0 = c1
-    out = [0] * n
-    for c in range(1, m + 1):
-        if owner[c]:
-            out[owner[c] - 1] = c - 1
     return out
 
 
